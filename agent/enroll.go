@@ -1,0 +1,171 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"time"
+
+	"github.com/auscult/auscult/pkg/baseline"
+	"github.com/auscult/auscult/pkg/embed"
+	"github.com/auscult/auscult/pkg/features"
+	"github.com/auscult/auscult/pkg/pipeline"
+)
+
+// blockSeconds splits long healthy recordings into calibration groups.
+const blockSeconds = 60
+
+// enrollOptions are the settings shared by enroll and the ablation tooling.
+type enrollOptions struct {
+	asset   string
+	rate    int
+	channel int
+	faProb  float64
+	k, n    int
+	floor   float64
+	parts   string
+	trim    int
+}
+
+func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
+	fc := features.DefaultConfig()
+	fc.Rate = o.rate
+	fc.FMax = float64(o.rate) / 2
+	ec := embed.DefaultConfig()
+	ec.Trim = o.trim
+	ec.Std, ec.Fine = false, false
+	for _, p := range strings.Split(o.parts, ",") {
+		switch strings.TrimSpace(p) {
+		case "mean":
+		case "std":
+			ec.Std = true
+		case "fine":
+			ec.Fine = true
+		default:
+			return fc, ec, usagef("--parts: unknown part %q (use mean, std, fine)", p)
+		}
+	}
+	if err := fc.Validate(); err != nil {
+		return fc, ec, usagef("--rate: %v", err)
+	}
+	if err := ec.Validate(fc.Hop); err != nil {
+		return fc, ec, usagef("%v", err)
+	}
+	return fc, ec, nil
+}
+
+func runEnroll(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("enroll", stderr)
+	out := fs.String("out", "", "write the baseline to this `file` (required)")
+	var o enrollOptions
+	fs.StringVar(&o.asset, "asset", "", "asset tag stored in the baseline, e.g. P-101A")
+	fs.IntVar(&o.rate, "rate", 16000, "analysis sample rate in Hz; recordings are resampled to it")
+	fs.IntVar(&o.channel, "channel", -1, "channel to analyse, from 0; -1 mixes all channels")
+	fs.Float64Var(&o.faProb, "false-alarm-prob", 0.002, "per-window false-alarm probability the threshold is set for")
+	debounce := fs.String("debounce", "3/5", "raise after K of N windows over threshold, as K/N")
+	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "eigenvalue floor relative to the mean eigenvalue (1 = no whitening)")
+	fs.StringVar(&o.parts, "parts", "mean,std,fine", "embedding parts: mean, std, fine")
+	fs.IntVar(&o.trim, "trim", embed.DefaultConfig().Trim, "sub-window values trimmed at each end per dimension")
+	paths, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	if *out == "" {
+		return usagef("--out is required")
+	}
+	if _, err := fmt.Sscanf(*debounce, "%d/%d", &o.k, &o.n); err != nil || o.k < 1 || o.n < o.k {
+		return usagef("--debounce %q: want K/N with 1 <= K <= N, e.g. 3/5", *debounce)
+	}
+	files, err := wavPaths(paths)
+	if err != nil {
+		return err
+	}
+	b, err := enroll(files, o, stderr)
+	if err != nil {
+		return err
+	}
+	if err := b.Save(*out); err != nil {
+		return err
+	}
+	printEnrolment(stdout, b, *out)
+	return nil
+}
+
+// enroll builds a baseline from healthy files.
+func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseline, error) {
+	fc, ec, err := o.configs()
+	if err != nil {
+		return nil, err
+	}
+	// Enrolment takes a window at every sub-window for more healthy
+	// examples; scoring uses the configured step.
+	dense := ec
+	dense.Step = 1
+	p, err := pipeline.New(fc, dense)
+	if err != nil {
+		return nil, err
+	}
+	var vecs [][]float32
+	var groups []int
+	var levels []float64
+	var recs []baseline.Recording
+	prog := newProgress(stderr, "enrolling", len(files))
+	for i, f := range files {
+		r, err := analyseFile(p, f, o.channel, true)
+		if err != nil {
+			prog.end()
+			return nil, err
+		}
+		rec := baseline.Recording{Name: f, Seconds: r.seconds}
+		var clip float64
+		for j, w := range r.windows {
+			rec.LevelsDBFS = append(rec.LevelsDBFS, w.levelDBFS)
+			clip += w.clipFraction
+			levels = append(levels, w.levelDBFS)
+			groups = append(groups, i*100000+int(w.startS/blockSeconds))
+			vecs = append(vecs, r.vecs[j])
+		}
+		rec.ClipFraction = clip / float64(len(r.windows))
+		recs = append(recs, rec)
+		prog.step(r.seconds)
+	}
+	prog.end()
+	if err := baseline.CheckQuality(recs, baseline.DefaultQualityLimits()); err != nil {
+		return nil, fmt.Errorf("enrolment refused:\n%w", err)
+	}
+	mo := baseline.DefaultModelOptions()
+	mo.Floor = o.floor
+	step := float64(ec.Step*ec.SubHops*fc.Hop) / float64(fc.Rate)
+	co := baseline.CalibrationOptions{FalseAlarmProb: o.faProb, K: o.k, N: o.n, StepSeconds: step, Folds: 5}
+	model, cal, err := baseline.Enroll(vecs, groups, mo, co)
+	if err != nil {
+		return nil, err
+	}
+	var seconds float64
+	for _, r := range recs {
+		seconds += r.Seconds
+	}
+	return &baseline.Baseline{Created: time.Now().UTC(), Asset: o.asset, Features: fc, Embed: ec,
+		Options: mo, Calib: cal, Level: baseline.Levels(levels), Model: model,
+		Enrolled: baseline.Enrolment{Recordings: len(files), Windows: len(vecs), Seconds: seconds}}, nil
+}
+
+func printEnrolment(w io.Writer, b *baseline.Baseline, path string) {
+	c, e := b.Calib, b.Enrolled
+	fmt.Fprintf(w, "baseline %s written to %s\n", b.ID, path)
+	if b.Asset != "" {
+		fmt.Fprintf(w, "  asset       %s\n", b.Asset)
+	}
+	fmt.Fprintf(w, "  enrolled    %d recordings, %s of healthy sound, %d windows\n", e.Recordings,
+		(time.Duration(e.Seconds) * time.Second).String(), e.Windows)
+	fmt.Fprintf(w, "  model       %d dimensions, %d whitened components, floor %.3g\n", e.Dim, e.Components, b.Options.Floor)
+	fmt.Fprintf(w, "  held out    %d windows in %d folds: median distance %.3f, 99th percentile %.3f\n",
+		c.HeldOutWindows, c.Folds, c.HeldOutMedian, c.HeldOutP99)
+	fmt.Fprintf(w, "  gamma fit   shape %.3g, scale %.3g (Kolmogorov-Smirnov %.3f)\n", c.Shape, c.Scale, c.KS)
+	fmt.Fprintf(w, "  threshold   %.4f for %.2g %% false alarms per window (%.2f %% of held-out windows above it)\n",
+		c.Threshold, 100*c.FalseAlarmProb, 100*c.HeldOutOver)
+	fmt.Fprintf(w, "  expected    %.3g false alarms per day raising on %d of %d windows, one window every %.2f s,\n"+
+		"              if windows were independent (overlap makes them less so)\n",
+		c.FalseAlarmsPerDay, c.K, c.N, c.StepSeconds)
+	fmt.Fprintf(w, "  level       %.1f dBFS mean, %.1f dB standard deviation\n", b.Level.MeanDBFS, b.Level.StdDB)
+}

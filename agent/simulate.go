@@ -1,0 +1,70 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"github.com/auscult/auscult/pkg/audio"
+	"github.com/auscult/auscult/pkg/sim"
+)
+
+func runSimulate(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("simulate", stderr)
+	out := fs.String("out", "", "write the data set into this `folder` (required)")
+	seed := fs.Int64("seed", 1, "seed: each seed is a different pump with its own recordings")
+	def := sim.DefaultOptions(1)
+	train := fs.Int("train", def.TrainClips, "healthy recordings for enrolment")
+	normal := fs.Int("test-normal", def.TestNormal, "healthy recordings in the test set")
+	perFault := fs.Int("per-fault", def.TestPerFaultSeverity, "test recordings per fault and severity")
+	seconds := fs.Float64("seconds", def.ClipSeconds, "length of each recording in seconds")
+	rate := fs.Int("rate", def.Rate, "sample rate of the files in Hz")
+	if _, err := parse(fs, args); err != nil {
+		return err
+	}
+	if *out == "" {
+		return usagef("--out is required")
+	}
+	if *train < 2 || *normal < 1 || *perFault < 0 || *seconds < 1 || *rate < 8000 || *rate > 48000 {
+		return usagef("need --train >= 2, --test-normal >= 1, --per-fault >= 0, --seconds >= 1, --rate 8000..48000")
+	}
+	opt := sim.DefaultOptions(*seed)
+	opt.TrainClips, opt.TestNormal, opt.TestPerFaultSeverity = *train, *normal, *perFault
+	opt.ClipSeconds, opt.Rate = *seconds, *rate
+	m, clips := sim.Plan(opt)
+	for _, d := range []string{"train", "test"} {
+		if err := os.MkdirAll(filepath.Join(*out, d), 0o755); err != nil {
+			return err
+		}
+	}
+	labels, err := os.Create(filepath.Join(*out, "test", "labels.csv"))
+	if err != nil {
+		return err
+	}
+	defer labels.Close()
+	fmt.Fprintln(labels, sim.LabelsCSVHeader())
+	buf := make([]int16, int(float64(opt.Rate)*opt.ClipSeconds))
+	prog := newProgress(stderr, "simulating", len(clips))
+	nTrain, nTest := 0, 0
+	for _, c := range clips {
+		sim.Render(m, c, opt.Rate, opt.ClipSeconds, buf)
+		if err := audio.WriteWAV(filepath.Join(*out, c.Split, c.Name), opt.Rate, buf); err != nil {
+			return err
+		}
+		if c.Split == "test" {
+			fmt.Fprintln(labels, c.CSVRow())
+			nTest++
+		} else {
+			nTrain++
+		}
+		prog.step(opt.ClipSeconds)
+	}
+	prog.end()
+	if err := labels.Close(); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "%s, pump %s: %d healthy recordings in %s, %d test recordings with labels.csv in %s\n",
+		m.Site, m.Asset, nTrain, filepath.Join(*out, "train"), nTest, filepath.Join(*out, "test"))
+	return nil
+}

@@ -1,0 +1,185 @@
+package baseline
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/auscult/auscult/pkg/gamma"
+)
+
+// Calibration turns distances into a threshold with a stated false-alarm
+// rate.
+type Calibration struct {
+	// Shape and Scale are the gamma distribution fitted to held-out healthy
+	// distances (location 0).
+	Shape float64 `json:"gamma_shape"`
+	Scale float64 `json:"gamma_scale"`
+	// KS is the Kolmogorov-Smirnov statistic of that fit (smaller is better).
+	KS float64 `json:"gamma_ks"`
+	// FalseAlarmProb is the per-window false-alarm probability the threshold
+	// was set for.
+	FalseAlarmProb float64 `json:"false_alarm_prob_per_window"`
+	// Threshold is the distance at which a window counts as over.
+	Threshold float64 `json:"threshold"`
+	// K and N are the debounce the rate below assumes: raise when K of the
+	// last N windows are over.
+	K int `json:"debounce_k"`
+	N int `json:"debounce_n"`
+	// StepSeconds is the time between windows; WindowsPerDay follows.
+	StepSeconds   float64 `json:"step_s"`
+	WindowsPerDay float64 `json:"windows_per_day"`
+	// FalseAlarmsPerDay is the expected number of raised alarms per day on
+	// healthy sound if windows were independent (see RaiseRate).
+	FalseAlarmsPerDay float64 `json:"false_alarms_per_day"`
+	// HeldOutWindows is how many held-out windows the fit used, Folds how
+	// many folds they came from, and HeldOutOver the measured share of them
+	// above Threshold.
+	HeldOutWindows int     `json:"held_out_windows"`
+	Folds          int     `json:"folds"`
+	HeldOutOver    float64 `json:"held_out_over"`
+	// HeldOutMedian and HeldOutP99 summarise the held-out distances.
+	HeldOutMedian float64 `json:"held_out_median"`
+	HeldOutP99    float64 `json:"held_out_p99"`
+}
+
+// CalibrationOptions sets the calibration targets.
+type CalibrationOptions struct {
+	FalseAlarmProb float64 // per window, default 0.002
+	K, N           int     // debounce, default 3 of 5
+	StepSeconds    float64 // seconds between windows
+	Folds          int     // default 5
+}
+
+// RaiseRate is the probability that a given window raises an alarm under a
+// k-of-n debounce when every window is over independently with probability
+// p: the window is over and exactly k-1 of the n-1 before it are, the
+// leading term of the binomial tail. Overlapping windows are correlated, so
+// the real rate can be higher; the measured HeldOutOver shows the per-window
+// part directly.
+func RaiseRate(p float64, k, n int) float64 {
+	return binom(n-1, k-1) * math.Pow(p, float64(k)) * math.Pow(1-p, float64(n-k))
+}
+
+func binom(n, k int) float64 {
+	r := 1.0
+	for i := 1; i <= k; i++ {
+		r = r * float64(n-k+i) / float64(i)
+	}
+	return r
+}
+
+// ErrTooFewGroups is returned when the healthy data cannot be split into at
+// least two folds for held-out calibration.
+var ErrTooFewGroups = errors.New("baseline: healthy data must hold at least two separate recordings or blocks for held-out calibration")
+
+// Enroll fits the model on all windows and calibrates it on held-out folds.
+// groups[i] names the recording or block window i came from; windows of one
+// group never sit on both sides of a fold.
+func Enroll(x [][]float32, groups []int, mo ModelOptions, co CalibrationOptions) (*Model, Calibration, error) {
+	if len(x) != len(groups) {
+		return nil, Calibration{}, errors.New("baseline: one group per window needed")
+	}
+	ids := distinct(groups)
+	folds := min(co.Folds, len(ids))
+	if folds < 2 {
+		return nil, Calibration{}, ErrTooFewGroups
+	}
+	foldOf := make(map[int]int, len(ids))
+	for i, g := range ids {
+		foldOf[g] = i % folds
+	}
+	var held []float64
+	for f := 0; f < folds; f++ {
+		var train, test [][]float32
+		for i, v := range x {
+			if foldOf[groups[i]] == f {
+				test = append(test, v)
+			} else {
+				train = append(train, v)
+			}
+		}
+		m, err := Fit(train, mo)
+		if err != nil {
+			return nil, Calibration{}, fmt.Errorf("baseline: fold %d: %w", f+1, err)
+		}
+		s := m.NewScorer()
+		for _, v := range test {
+			held = append(held, s.Distance(v))
+		}
+	}
+	model, err := Fit(x, mo)
+	if err != nil {
+		return nil, Calibration{}, err
+	}
+	cal, err := Calibrate(held, co)
+	if err != nil {
+		return nil, Calibration{}, err
+	}
+	cal.Folds = folds
+	return model, cal, nil
+}
+
+// Calibrate fits the gamma distribution to held-out healthy distances and
+// sets the threshold.
+func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
+	if !(co.FalseAlarmProb > 0 && co.FalseAlarmProb < 0.5) {
+		return Calibration{}, fmt.Errorf("baseline: false-alarm probability must be in (0, 0.5), got %g", co.FalseAlarmProb)
+	}
+	if co.K < 1 || co.N < co.K {
+		return Calibration{}, fmt.Errorf("baseline: debounce needs 1 <= k <= n, got %d of %d", co.K, co.N)
+	}
+	d, err := gamma.Fit(held)
+	if err != nil {
+		return Calibration{}, fmt.Errorf("baseline: gamma fit of %d held-out distances: %w", len(held), err)
+	}
+	c := Calibration{Shape: d.Shape, Scale: d.Scale, KS: gamma.KSStat(held, d),
+		FalseAlarmProb: co.FalseAlarmProb, K: co.K, N: co.N, StepSeconds: co.StepSeconds,
+		HeldOutWindows: len(held)}
+	c.Threshold = d.Quantile(1 - co.FalseAlarmProb)
+	over := 0
+	for _, v := range held {
+		if v > c.Threshold {
+			over++
+		}
+	}
+	c.HeldOutOver = float64(over) / float64(len(held))
+	sorted := append([]float64(nil), held...)
+	sort.Float64s(sorted)
+	c.HeldOutMedian = quantile(sorted, 0.5)
+	c.HeldOutP99 = quantile(sorted, 0.99)
+	if co.StepSeconds > 0 {
+		c.WindowsPerDay = 86400 / co.StepSeconds
+		c.FalseAlarmsPerDay = c.WindowsPerDay * RaiseRate(co.FalseAlarmProb, co.K, co.N)
+	}
+	return c, nil
+}
+
+// quantile is the linear-interpolation quantile of sorted values
+// (numpy's default method).
+func quantile(sorted []float64, q float64) float64 {
+	if len(sorted) == 0 {
+		return math.NaN()
+	}
+	pos := q * float64(len(sorted)-1)
+	i := int(pos)
+	if i >= len(sorted)-1 {
+		return sorted[len(sorted)-1]
+	}
+	f := pos - float64(i)
+	return sorted[i]*(1-f) + sorted[i+1]*f
+}
+
+func distinct(g []int) []int {
+	seen := map[int]bool{}
+	var out []int
+	for _, v := range g {
+		if !seen[v] {
+			seen[v] = true
+			out = append(out, v)
+		}
+	}
+	sort.Ints(out)
+	return out
+}

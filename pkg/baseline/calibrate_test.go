@@ -1,0 +1,87 @@
+package baseline
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/auscult/auscult/pkg/gamma"
+)
+
+// RaiseRate against a direct simulation of a k-of-n debounce on
+// independent windows: count windows where the k-of-n condition turns true.
+// The closed form is the binomial leading term; for small p it matches.
+func TestRaiseRateMatchesSimulation(t *testing.T) {
+	r := rand.New(rand.NewPCG(1, 1))
+	p, k, n := 0.05, 3, 5
+	const windows = 4_000_000
+	hist := make([]bool, n)
+	raised, prev := 0, false
+	for i := 0; i < windows; i++ {
+		hist[i%n] = r.Float64() < p
+		c := 0
+		for _, h := range hist {
+			if h {
+				c++
+			}
+		}
+		now := c >= k
+		if now && !prev {
+			raised++
+		}
+		prev = now
+	}
+	got := float64(raised) / windows
+	want := RaiseRate(p, k, n)
+	if math.Abs(got-want)/want > 0.15 {
+		t.Errorf("simulated raise rate %.3g per window, formula %.3g", got, want)
+	}
+}
+
+func TestRaiseRateSpecialCases(t *testing.T) {
+	if got := RaiseRate(0.01, 1, 1); got != 0.01 {
+		t.Errorf("1 of 1: %g", got)
+	}
+	if got := RaiseRate(0.1, 2, 2); math.Abs(got-0.01) > 1e-15 {
+		t.Errorf("2 of 2: %g", got)
+	}
+}
+
+// The threshold is the gamma quantile of the held-out distances: on data
+// drawn from a known gamma, it lands near the true quantile.
+func TestCalibrateThresholdIsGammaQuantile(t *testing.T) {
+	r := rand.New(rand.NewPCG(2, 2))
+	truth := gamma.Dist{Shape: 20, Scale: 0.015}
+	held := make([]float64, 4000)
+	for i := range held {
+		// Sum of exponentials is gamma for integer shape.
+		var s float64
+		for j := 0; j < 20; j++ {
+			s += -math.Log(1-r.Float64()) * truth.Scale
+		}
+		held[i] = s
+	}
+	c, err := Calibrate(held, CalibrationOptions{FalseAlarmProb: 0.002, K: 3, N: 5, StepSeconds: 2.048})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := truth.Quantile(0.998)
+	if math.Abs(c.Threshold-want)/want > 0.03 {
+		t.Errorf("threshold %.4f, true quantile %.4f", c.Threshold, want)
+	}
+	if math.Abs(c.WindowsPerDay-86400/2.048) > 1e-9 || c.FalseAlarmsPerDay <= 0 {
+		t.Errorf("rate fields: %+v", c)
+	}
+	if c.HeldOutOver > 0.006 {
+		t.Errorf("%.4f of held-out windows over a 0.2 %% threshold", c.HeldOutOver)
+	}
+}
+
+func TestEnrollNeedsTwoGroups(t *testing.T) {
+	x := correlated(50, 8, 3)
+	g := make([]int, len(x))
+	_, _, err := Enroll(x, g, DefaultModelOptions(), CalibrationOptions{FalseAlarmProb: 0.01, K: 1, N: 1, Folds: 5})
+	if err != ErrTooFewGroups {
+		t.Fatalf("got %v", err)
+	}
+}

@@ -1,0 +1,37 @@
+// Package baseline is the enrolled healthy reference of one machine: the
+// model that turns an embedding input vector into a distance from healthy
+// sound, its calibration, its quality checks and its file format.
+//
+// # Model
+//
+// Enrolment standardises every dimension with the healthy mean and standard
+// deviation, then whitens with the principal components of the healthy
+// windows. Eigenvalues below a floor (Floor times the mean eigenvalue) are
+// raised to it, so directions that healthy sound never used are weighted
+// strongly but not infinitely: gain drift, background noise and speed
+// set-points fill the major components, faults show in the minor ones.
+//
+// The embedding of a window is e = (a, c_1/sqrt(l_1), ..., c_K/sqrt(l_K),
+// r/sqrt(floor)) where c_i are the coordinates on the K kept components, r
+// is the residual outside them, and a is a constant anchor. The enrolled
+// mean embedding is m = (a, 0, ..., 0): centring on the healthy mean puts
+// every healthy window near the anchor's axis, and the anchor keeps the mean
+// from being the zero vector, so the cosine distance 1 - e.m/(|e||m|) is
+// defined. It equals 1 - a/sqrt(a^2 + d^2) with d the floored Mahalanobis
+// distance: 0 for a window exactly at the healthy mean, approaching 1 for a
+// window far from it. The anchor is set so a typical healthy window scores
+// about 0.29.
+//
+// # Calibration
+//
+// Windows are grouped by recording (or blocks of a long recording) into
+// folds; each fold is scored by a model fitted without it. A gamma
+// distribution fitted to these held-out distances sets the threshold at the
+// configured per-window false-alarm probability, which is then restated as
+// expected false alarms per day under a k-of-n debounce.
+//
+// # File
+//
+// See format.go for the byte layout; files are written atomically and carry
+// a CRC-32C over everything before it.
+package baseline

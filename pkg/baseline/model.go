@@ -1,0 +1,162 @@
+package baseline
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Model is the fitted whitening transform and anchor. It is read-only once
+// fitted; use a Scorer to compute distances.
+type Model struct {
+	Mean   []float32   // healthy mean per dimension
+	Scale  []float32   // healthy standard deviation per dimension (floored)
+	Lambda []float32   // eigenvalues of the kept components, descending
+	Comps  [][]float32 // kept unit eigenvectors, K x D
+	Floor  float32     // eigenvalue floor for everything outside the kept components
+	Anchor float32     // the constant first coordinate of every embedding
+}
+
+// ModelOptions tunes the fit.
+type ModelOptions struct {
+	// Floor is the eigenvalue floor relative to the mean eigenvalue of the
+	// standardised healthy data (default 0.05). 1 or more turns the model
+	// into a plain per-dimension standardisation (no whitening).
+	Floor float64
+	// MinScale is the smallest per-dimension standard deviation used for
+	// standardising, in the features' units (dB; default 0.1).
+	MinScale float64
+}
+
+// DefaultModelOptions returns the options enrolment uses by default.
+func DefaultModelOptions() ModelOptions { return ModelOptions{Floor: 0.05, MinScale: 0.1} }
+
+// Fit learns a model from healthy vectors (N x D, N >= 2).
+func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
+	n := len(x)
+	if n < 2 {
+		return nil, fmt.Errorf("baseline: need at least 2 windows to fit, got %d", n)
+	}
+	d := len(x[0])
+	m := &Model{Mean: make([]float32, d), Scale: make([]float32, d)}
+	mean := make([]float64, d)
+	for _, v := range x {
+		if len(v) != d {
+			return nil, errors.New("baseline: vectors of different lengths")
+		}
+		for j, f := range v {
+			mean[j] += float64(f)
+		}
+	}
+	for j := range mean {
+		mean[j] /= float64(n)
+	}
+	vars := make([]float64, d)
+	for _, v := range x {
+		for j, f := range v {
+			dv := float64(f) - mean[j]
+			vars[j] += dv * dv
+		}
+	}
+	for j := range vars {
+		m.Mean[j] = float32(mean[j])
+		m.Scale[j] = float32(max(math.Sqrt(vars[j]/float64(n-1)), opt.MinScale))
+	}
+	z := mat.NewDense(n, d, nil)
+	for i, v := range x {
+		row := z.RawRowView(i)
+		for j, f := range v {
+			row[j] = (float64(f) - mean[j]) / float64(m.Scale[j])
+		}
+	}
+	var cov mat.SymDense
+	cov.SymOuterK(1/float64(n-1), z.T())
+	var trace float64
+	for j := 0; j < d; j++ {
+		trace += cov.At(j, j)
+	}
+	floor := opt.Floor * trace / float64(d)
+	if floor <= 0 {
+		floor = 1e-6
+	}
+	m.Floor = float32(floor)
+	if opt.Floor < 1 {
+		var eig mat.EigenSym
+		if !eig.Factorize(&cov, true) {
+			return nil, errors.New("baseline: eigen-decomposition of the healthy covariance failed")
+		}
+		vals := eig.Values(nil) // ascending
+		var vecs mat.Dense
+		eig.VectorsTo(&vecs)
+		for i := len(vals) - 1; i >= 0 && vals[i] > floor; i-- {
+			m.Lambda = append(m.Lambda, float32(vals[i]))
+			c := make([]float32, d)
+			for j := range c {
+				c[j] = float32(vecs.At(j, i))
+			}
+			m.Comps = append(m.Comps, c)
+		}
+	}
+	// Anchor: the root-mean-square whitened norm of the training windows.
+	s := m.NewScorer()
+	var sq float64
+	for _, v := range x {
+		sq += s.norm2(v)
+	}
+	m.Anchor = float32(math.Sqrt(max(sq/float64(n), 1e-12)))
+	return m, nil
+}
+
+// Dim is the input dimension.
+func (m *Model) Dim() int { return len(m.Mean) }
+
+// Scorer computes distances without allocating. Not safe for concurrent
+// use; make one per goroutine.
+type Scorer struct {
+	m *Model
+	z []float32
+}
+
+// NewScorer returns a Scorer for m.
+func (m *Model) NewScorer() *Scorer { return &Scorer{m: m, z: make([]float32, len(m.Mean))} }
+
+// norm2 is the squared whitened norm |w|^2 of x.
+func (s *Scorer) norm2(x []float32) float64 {
+	m := s.m
+	var zz float64
+	for j, v := range x {
+		z := (v - m.Mean[j]) / m.Scale[j]
+		s.z[j] = z
+		zz += float64(z) * float64(z)
+	}
+	var proj, res float64
+	res = zz
+	for i, c := range m.Comps {
+		var dot float32
+		for j, v := range c {
+			dot += v * s.z[j]
+		}
+		d2 := float64(dot) * float64(dot)
+		proj += d2 / float64(m.Lambda[i])
+		res -= d2
+	}
+	return proj + max(res, 0)/float64(m.Floor)
+}
+
+// Distance is the cosine distance between the embedding of x and the
+// enrolled mean embedding, in [0, 1).
+func (s *Scorer) Distance(x []float32) float64 {
+	a := float64(s.m.Anchor)
+	return 1 - a/math.Sqrt(a*a+s.norm2(x))
+}
+
+// Deviations writes the standardised deviation (x - mean)/scale of every
+// dimension into dst (len D) and returns it.
+func (s *Scorer) Deviations(x []float32, dst []float32) []float32 {
+	for j, v := range x {
+		dst[j] = (v - s.m.Mean[j]) / s.m.Scale[j]
+	}
+	return dst
+}

@@ -1,0 +1,182 @@
+package baseline
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// correlated draws n vectors of dimension d with a few strong common
+// factors (like gain and speed) plus small independent noise.
+func correlated(n, d int, seed uint64) [][]float32 {
+	r := rand.New(rand.NewPCG(seed, 2))
+	load := make([][]float64, 3)
+	for f := range load {
+		load[f] = make([]float64, d)
+		for j := range load[f] {
+			load[f][j] = r.NormFloat64()
+		}
+	}
+	out := make([][]float32, n)
+	for i := range out {
+		v := make([]float32, d)
+		fs := []float64{3 * r.NormFloat64(), 2 * r.NormFloat64(), r.NormFloat64()}
+		for j := range v {
+			x := 10 + 0.3*r.NormFloat64()
+			for f := range fs {
+				x += fs[f] * load[f][j]
+			}
+			v[j] = float32(x)
+		}
+		out[i] = v
+	}
+	return out
+}
+
+// The distance must equal 1 - a/sqrt(a^2 + d^2) where d^2 is the
+// Mahalanobis distance under the floored covariance, computed here the
+// textbook way: standardise, eigen-decompose, raise small eigenvalues to
+// the floor, invert (Mahalanobis 1936; the floor is our regularisation).
+func TestDistanceIsFlooredMahalanobis(t *testing.T) {
+	x := correlated(300, 24, 1)
+	m, err := Fit(x, ModelOptions{Floor: 0.05, MinScale: 0.01})
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := len(x[0])
+	z := func(v []float32) []float64 {
+		o := make([]float64, d)
+		for j := range o {
+			o[j] = float64((v[j] - m.Mean[j]) / m.Scale[j])
+		}
+		return o
+	}
+	zs := mat.NewDense(len(x), d, nil)
+	for i, v := range x {
+		zs.SetRow(i, z(v))
+	}
+	var cov mat.SymDense
+	cov.SymOuterK(1/float64(len(x)-1), zs.T())
+	var eig mat.EigenSym
+	eig.Factorize(&cov, true)
+	vals := eig.Values(nil)
+	var vecs mat.Dense
+	eig.VectorsTo(&vecs)
+	for i := range vals {
+		vals[i] = max(vals[i], float64(m.Floor))
+	}
+	inv := mat.NewDense(d, d, nil)
+	for i := 0; i < d; i++ {
+		for j := 0; j < d; j++ {
+			var s float64
+			for k := range vals {
+				s += vecs.At(i, k) * vecs.At(j, k) / vals[k]
+			}
+			inv.Set(i, j, s)
+		}
+	}
+	s := m.NewScorer()
+	probe := correlated(20, 24, 9)
+	probe[0][3] += 5 // an anomaly in one dimension
+	for i, v := range probe {
+		zv := mat.NewVecDense(d, z(v))
+		var tmp mat.VecDense
+		tmp.MulVec(inv, zv)
+		d2 := mat.Dot(zv, &tmp)
+		a := float64(m.Anchor)
+		want := 1 - a/math.Sqrt(a*a+d2)
+		if got := s.Distance(v); math.Abs(got-want) > 1e-4 {
+			t.Errorf("probe %d: distance %.6f, floored Mahalanobis gives %.6f", i, got, want)
+		}
+	}
+}
+
+// The distance is the cosine distance between the explicit embedding
+// (anchor, whitened coordinates, scaled residual) and the mean embedding
+// (anchor, 0, ...): 1 - e.m / (|e| |m|).
+func TestDistanceIsCosineToMeanEmbedding(t *testing.T) {
+	x := correlated(200, 16, 3)
+	m, err := Fit(x, DefaultModelOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := m.NewScorer()
+	for _, v := range correlated(10, 16, 4) {
+		z := make([]float64, len(v))
+		for j := range z {
+			z[j] = float64((v[j] - m.Mean[j]) / m.Scale[j])
+		}
+		e := []float64{float64(m.Anchor)}
+		res := append([]float64(nil), z...)
+		for i, c := range m.Comps {
+			var dot float64
+			for j := range c {
+				dot += float64(c[j]) * z[j]
+			}
+			e = append(e, dot/math.Sqrt(float64(m.Lambda[i])))
+			for j := range res {
+				res[j] -= dot * float64(c[j])
+			}
+		}
+		for _, r := range res {
+			e = append(e, r/math.Sqrt(float64(m.Floor)))
+		}
+		var ee float64
+		for _, x := range e {
+			ee += x * x
+		}
+		want := 1 - e[0]*float64(m.Anchor)/(math.Sqrt(ee)*float64(m.Anchor))
+		if got := s.Distance(v); math.Abs(got-want) > 1e-4 {
+			t.Errorf("distance %.6f, explicit cosine %.6f", got, want)
+		}
+	}
+}
+
+func TestHealthyScoresNearDesignPoint(t *testing.T) {
+	x := correlated(400, 20, 5)
+	m, err := Fit(x, DefaultModelOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := m.NewScorer()
+	var sum float64
+	for _, v := range x {
+		sum += s.Distance(v)
+	}
+	// The anchor is the RMS whitened norm, so a typical window sits near
+	// 1 - 1/sqrt(2) = 0.293.
+	if mean := sum / float64(len(x)); math.Abs(mean-0.29) > 0.03 {
+		t.Errorf("mean healthy distance %.3f, want about 0.29", mean)
+	}
+}
+
+func TestWhiteningSeesMinorDirections(t *testing.T) {
+	x := correlated(400, 20, 6)
+	white, _ := Fit(x, DefaultModelOptions())
+	diag, _ := Fit(x, ModelOptions{Floor: 1, MinScale: 0.1})
+	// Move a healthy window against the correlation structure: small in
+	// every dimension, but in a direction healthy data never takes.
+	v := append([]float32(nil), x[0]...)
+	for j := range v {
+		if j%2 == 0 {
+			v[j] += 0.6
+		} else {
+			v[j] -= 0.6
+		}
+	}
+	ws, ds := white.NewScorer(), diag.NewScorer()
+	if !(ws.Distance(v)-ws.Distance(x[0]) > 3*(ds.Distance(v)-ds.Distance(x[0]))) {
+		t.Errorf("whitened moved %.3f, diagonal %.3f", ws.Distance(v)-ws.Distance(x[0]), ds.Distance(v)-ds.Distance(x[0]))
+	}
+}
+
+func TestScorerDoesNotAllocate(t *testing.T) {
+	x := correlated(100, 32, 7)
+	m, _ := Fit(x, DefaultModelOptions())
+	s := m.NewScorer()
+	if a := testing.AllocsPerRun(100, func() { s.Distance(x[1]) }); a != 0 {
+		t.Errorf("Distance allocates %.0f times", a)
+	}
+}

@@ -1,0 +1,30 @@
+#!/usr/bin/env bash
+# Installs what the tests need (idempotently) and runs every test.
+# Usage: scripts/test.sh            (from any folder; needs root or sudo for apt-get)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+# Debian packages the tests use: sox writes reference WAV files.
+packages=(sox)
+missing=()
+for p in "${packages[@]}"; do
+  dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
+done
+if ((${#missing[@]})); then
+  echo "test.sh: installing ${missing[*]}"
+  sudo=""; [ "$(id -u)" -eq 0 ] || sudo="sudo"
+  $sudo apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
+fi
+command -v go >/dev/null || { echo "test.sh: Go is not installed (need Go 1.26 or newer)"; exit 1; }
+
+echo "== vet"
+go vet ./...
+echo "== build without cgo"
+CGO_ENABLED=0 go build -o /dev/null ./agent
+echo "== benchmarks compile and run once"
+go test -run '^$' -bench . -benchtime 1x ./... >/dev/null
+echo "== fuzz the WAV parser briefly"
+go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio >/dev/null
+echo "== tests"
+go test -count=1 ./...
