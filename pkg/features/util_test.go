@@ -1,0 +1,6 @@
+package features
+
+import "strconv"
+
+// itoa names subtests.
+func itoa(i int) string { return strconv.Itoa(i) }
