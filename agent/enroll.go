@@ -33,16 +33,19 @@ func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
 	fc.FMax = float64(o.rate) / 2
 	ec := embed.DefaultConfig()
 	ec.Trim = o.trim
-	ec.Std, ec.Fine = false, false
+	ec.Mean, ec.Std, ec.Low, ec.Fine = false, false, false, false
 	for _, p := range strings.Split(o.parts, ",") {
 		switch strings.TrimSpace(p) {
 		case "mean":
+			ec.Mean = true
+		case "low":
+			ec.Low = true
 		case "std":
 			ec.Std = true
 		case "fine":
 			ec.Fine = true
 		default:
-			return fc, ec, usagef("--parts: unknown part %q (use mean, std, fine)", p)
+			return fc, ec, usagef("--parts: unknown part %q (use low, fine, mean, std)", p)
 		}
 	}
 	if err := fc.Validate(); err != nil {
@@ -63,8 +66,8 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	fs.IntVar(&o.channel, "channel", -1, "channel to analyse, from 0; -1 mixes all channels")
 	fs.Float64Var(&o.faProb, "false-alarm-prob", 0.002, "per-window false-alarm probability the threshold is set for")
 	debounce := fs.String("debounce", "3/5", "raise after K of N windows over threshold, as K/N")
-	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "eigenvalue floor relative to the mean eigenvalue (1 = no whitening)")
-	fs.StringVar(&o.parts, "parts", "mean,std,fine", "embedding parts: mean, std, fine")
+	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "scale of the eigenvalue floor (1 = the sampling-noise edge)")
+	fs.StringVar(&o.parts, "parts", "low,fine", "embedding parts: low (quiet floor per mel band), fine (low-frequency lines), mean, std")
 	fs.IntVar(&o.trim, "trim", embed.DefaultConfig().Trim, "sub-window values trimmed at each end per dimension")
 	paths, err := parse(fs, args)
 	if err != nil {
@@ -111,7 +114,7 @@ func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseli
 	var recs []baseline.Recording
 	prog := newProgress(stderr, "enrolling", len(files))
 	for i, f := range files {
-		r, err := analyseFile(p, f, o.channel, true)
+		r, err := analyseFile(p, f, analyseOptions{channel: o.channel, keepVecs: true})
 		if err != nil {
 			prog.end()
 			return nil, err
@@ -135,6 +138,7 @@ func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseli
 	}
 	mo := baseline.DefaultModelOptions()
 	mo.Floor = o.floor
+	mo.Redundancy = float64(ec.Window) / float64(dense.Step)
 	step := float64(ec.Step*ec.SubHops*fc.Hop) / float64(fc.Rate)
 	co := baseline.CalibrationOptions{FalseAlarmProb: o.faProb, K: o.k, N: o.n, StepSeconds: step, Folds: 5}
 	model, cal, err := baseline.Enroll(vecs, groups, mo, co)

@@ -21,17 +21,27 @@ type Model struct {
 
 // ModelOptions tunes the fit.
 type ModelOptions struct {
-	// Floor is the eigenvalue floor relative to the mean eigenvalue of the
-	// standardised healthy data (default 0.05). 1 or more turns the model
-	// into a plain per-dimension standardisation (no whitening).
-	Floor float64
+	// Floor scales the eigenvalue floor (default 1). The floor is
+	// Floor * (1 + sqrt(D/Neff))^2 * median eigenvalue: the upper edge of
+	// the Marchenko-Pastur law for D dimensions and Neff independent
+	// windows, with the median eigenvalue as the noise level. Eigenvalues
+	// below it cannot be told from sampling noise, so they are not trusted;
+	// components above it (gain, background, speed variation) are whitened.
+	Floor float64 `json:"floor"`
+	// Redundancy is how many windows make one independent observation
+	// (overlapping windows: window length over step; default 1). Neff is
+	// the number of windows divided by it.
+	Redundancy float64 `json:"redundancy"`
+	// NoWhiten skips the eigen-decomposition: a plain per-dimension
+	// standardisation (for comparison).
+	NoWhiten bool `json:"no_whiten,omitempty"`
 	// MinScale is the smallest per-dimension standard deviation used for
 	// standardising, in the features' units (dB; default 0.1).
-	MinScale float64
+	MinScale float64 `json:"min_scale"`
 }
 
 // DefaultModelOptions returns the options enrolment uses by default.
-func DefaultModelOptions() ModelOptions { return ModelOptions{Floor: 0.05, MinScale: 0.1} }
+func DefaultModelOptions() ModelOptions { return ModelOptions{Floor: 1, Redundancy: 1, MinScale: 0.1} }
 
 // Fit learns a model from healthy vectors (N x D, N >= 2).
 func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
@@ -40,6 +50,9 @@ func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
 		return nil, fmt.Errorf("baseline: need at least 2 windows to fit, got %d", n)
 	}
 	d := len(x[0])
+	if d == 0 {
+		return nil, errors.New("baseline: vectors have no dimensions")
+	}
 	m := &Model{Mean: make([]float32, d), Scale: make([]float32, d)}
 	mean := make([]float64, d)
 	for _, v := range x {
@@ -77,17 +90,18 @@ func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
 	for j := 0; j < d; j++ {
 		trace += cov.At(j, j)
 	}
-	floor := opt.Floor * trace / float64(d)
-	if floor <= 0 {
-		floor = 1e-6
-	}
-	m.Floor = float32(floor)
-	if opt.Floor < 1 {
+	if opt.NoWhiten {
+		m.Floor = float32(max(trace/float64(d), 1e-6))
+	} else {
 		var eig mat.EigenSym
 		if !eig.Factorize(&cov, true) {
 			return nil, errors.New("baseline: eigen-decomposition of the healthy covariance failed")
 		}
 		vals := eig.Values(nil) // ascending
+		neff := float64(n) / max(opt.Redundancy, 1)
+		mp := 1 + math.Sqrt(float64(d)/neff)
+		floor := max(opt.Floor*mp*mp*vals[len(vals)/2], 1e-6*trace/float64(d))
+		m.Floor = float32(floor)
 		var vecs mat.Dense
 		eig.VectorsTo(&vecs)
 		for i := len(vals) - 1; i >= 0 && vals[i] > floor; i-- {

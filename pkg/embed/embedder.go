@@ -43,7 +43,11 @@ type Embedder struct {
 	fineBank *features.Bank
 	onLong   func([]int16)
 
-	nMel, nStd, nFine, dim int
+	nMel, nStd, nLow, nFine, dim int
+	// offsets of the parts in a vector
+	offMean, offStd, offLow, offFine int
+	rows                             []float32 // the sub-window's log-mel rows, frames x Mels (for the low quantile)
+	lowCol                           []float32
 
 	// per sub-window accumulators
 	sum, sumSq  []float64
@@ -77,9 +81,16 @@ func New(fc features.Config, cfg Config) (*Embedder, error) {
 	}
 	e := &Embedder{fc: fc, cfg: cfg, ext: ext,
 		mel: features.NewFramer(fc.FrameLen, fc.Hop), row: make([]float32, fc.Mels)}
-	e.nMel = fc.Mels
+	if cfg.Mean {
+		e.nMel = fc.Mels
+	}
 	if cfg.Std {
 		e.nStd = fc.Mels
+	}
+	if cfg.Low {
+		e.nLow = fc.Mels
+		e.rows = make([]float32, cfg.SubHops*fc.Mels)
+		e.lowCol = make([]float32, cfg.SubHops)
 	}
 	subLen := cfg.SubHops * fc.Hop
 	e.long = features.NewFramer(subLen, subLen)
@@ -98,7 +109,13 @@ func New(fc features.Config, cfg Config) (*Embedder, error) {
 		e.nFine = e.fineBank.Len()
 		e.fineVals = make([]float32, e.nFine)
 	}
-	e.dim = e.nMel + e.nStd + e.nFine
+	e.offMean, e.offStd = 0, e.nMel
+	e.offLow = e.offStd + e.nStd
+	e.offFine = e.offLow + e.nLow
+	e.dim = e.offFine + e.nFine
+	if e.dim == 0 {
+		return nil, fmt.Errorf("embed: no embedding parts selected")
+	}
 	e.sum = make([]float64, fc.Mels)
 	e.sumSq = make([]float64, fc.Mels)
 	e.subs = make([][]float32, cfg.Window)
@@ -148,6 +165,9 @@ func (e *Embedder) Push(p []int16, emit func(w *Window)) {
 }
 
 func (e *Embedder) frame(f []int16) {
+	if e.nLow > 0 {
+		e.row = e.rows[e.frames*e.fc.Mels : (e.frames+1)*e.fc.Mels]
+	}
 	e.ext.Rows(f, e.row)
 	for b, v := range e.row {
 		x := float64(v)
@@ -192,28 +212,38 @@ func (e *Embedder) closeSub() {
 	slot := e.subs[e.subIndex%int64(e.cfg.Window)]
 	inv := 1 / float64(e.frames)
 	var level float64
-	for b := 0; b < e.nMel; b++ {
+	for b := 0; b < e.fc.Mels; b++ {
 		m := e.sum[b] * inv
-		slot[b] = float32(m)
 		level += m
+		if e.nMel > 0 {
+			slot[e.offMean+b] = float32(m)
+		}
 		if e.nStd > 0 {
 			v := e.sumSq[b]*inv - m*m
-			slot[e.nMel+b] = float32(math.Sqrt(max(v, 0)))
+			slot[e.offStd+b] = float32(math.Sqrt(max(v, 0)))
+		}
+		if e.nLow > 0 {
+			col := e.lowCol[:e.frames]
+			for f := range col {
+				col[f] = e.rows[f*e.fc.Mels+b]
+			}
+			insertionSort(col)
+			slot[e.offLow+b] = col[int(e.cfg.LowQuantile*float64(e.frames-1)+0.5)]
 		}
 		e.sum[b], e.sumSq[b] = 0, 0
 	}
-	level /= float64(e.nMel)
+	level /= float64(e.fc.Mels)
 	if !e.cfg.LevelNorm {
 		level = 0
 	}
 	for b := 0; b < e.nMel; b++ {
-		slot[b] -= float32(level)
+		slot[e.offMean+b] -= float32(level)
 	}
-	if e.nFine > 0 {
-		off := e.nMel + e.nStd
-		for i, v := range e.fineVals {
-			slot[off+i] = v - float32(level)
-		}
+	for b := 0; b < e.nLow; b++ {
+		slot[e.offLow+b] -= float32(level)
+	}
+	for i, v := range e.fineVals {
+		slot[e.offFine+i] = v - float32(level)
 	}
 	ring := e.subIndex % int64(e.cfg.Window)
 	e.levelSubs[ring] = e.subPower

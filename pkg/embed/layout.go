@@ -3,7 +3,7 @@ package embed
 // Dim describes one dimension of Window.Vec, so a deviation can be reported
 // as a frequency range a technician understands.
 type Dim struct {
-	// Part is "mel_mean", "mel_std" or "fine".
+	// Part is "mel_mean", "mel_std", "mel_low" or "fine".
 	Part string `json:"part"`
 	// LoHz and HiHz bound the band the dimension measures.
 	LoHz float64 `json:"lo_hz"`
@@ -21,6 +21,10 @@ func (e *Embedder) Layout() []Dim {
 	for i := 0; i < e.nStd; i++ {
 		lo, hi := bank.Edges(i)
 		out = append(out, Dim{Part: "mel_std", LoHz: lo, HiHz: hi})
+	}
+	for i := 0; i < e.nLow; i++ {
+		lo, hi := bank.Edges(i)
+		out = append(out, Dim{Part: "mel_low", LoHz: lo, HiHz: hi})
 	}
 	for i := 0; i < e.nFine; i++ {
 		lo, hi := e.fineBank.Edges(i)

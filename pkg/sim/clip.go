@@ -61,11 +61,11 @@ func Severities() []string { return []string{"mild", "moderate", "severe"} }
 func SeverityDB(severity string) float64 {
 	switch severity {
 	case "mild":
-		return -24
+		return -6
 	case "moderate":
-		return -16
+		return 0
 	case "severe":
-		return -8
+		return 6
 	}
 	return -200
 }

@@ -13,8 +13,9 @@ type faultSignal struct {
 	turbGain float64
 }
 
-// fault synthesises the clip's fault, if any, at the power SeverityDB(sev)
-// relative to the healthy machine's power at the source.
+// fault synthesises the clip's fault, if any, at SeverityDB(sev) relative
+// to the healthy machine at the source, measured in the fault's own
+// third-octave bands (inBandRatio).
 func (s *scene) fault(h healthyParts) faultSignal {
 	out := faultSignal{turbGain: 1}
 	if s.c.Fault == "" {
@@ -48,9 +49,12 @@ func (s *scene) fault(h healthyParts) faultSignal {
 	for i := range x {
 		x[i] *= s.aff[i]
 	}
-	p := meanPower(s.visible(x))
-	if p > 0 {
-		scale(x, math.Sqrt(s.healthyPower(h)*dbToPow(SeverityDB(s.c.Severity))/p))
+	healthy := make([]float64, s.n)
+	for i := range healthy {
+		healthy[i] = h.at(s.pre + i)
+	}
+	if r := inBandRatio(s.visible(x), healthy, s.rate); r > 0 && !math.IsInf(r, 0) {
+		scale(x, math.Sqrt(dbToPow(SeverityDB(s.c.Severity))/r))
 	}
 	out.add = x
 	return out

@@ -7,6 +7,7 @@
 package main
 
 import (
+	"encoding/binary"
 	"encoding/csv"
 	"flag"
 	"fmt"
@@ -222,26 +223,42 @@ func run(ds *dataset, v variant) (result, error) {
 
 func main() {
 	only := flag.String("only", "", "run only variants whose name contains this")
+	fineBPO := flag.Int("finebpo", embed.DefaultConfig().FineBandsPerOctave, "fine view bands per octave")
+	lowQ := flag.Float64("lowq", embed.DefaultConfig().LowQuantile, "quantile of the low part")
+	levelNorm := flag.Bool("levelnorm", true, "subtract each sub-window's level")
+	dump := flag.String("dump", "", "write the window vectors of the first data set to this folder (float32 .bin files and an index) and stop")
 	flag.Parse()
 	fc := features.DefaultConfig()
 	ec := embed.DefaultConfig()
-	all := map[string]bool{"mel_mean": true, "mel_std": true, "fine": true}
+	ec.LevelNorm = *levelNorm
+	ec.Mean, ec.Std, ec.Low, ec.Fine = true, true, true, true // every part, picked per variant
+	ec.LowQuantile = *lowQ
+	ec.FineBandsPerOctave = *fineBPO
+	parts := func(names ...string) map[string]bool {
+		m := map[string]bool{}
+		for _, n := range names {
+			m[n] = true
+		}
+		return m
+	}
 	def := baseline.DefaultModelOptions()
+	def.Redundancy = float64(ec.Window) // enrolment windows advance by one sub-window
 	diag := def
-	diag.Floor = 1
+	diag.NoWhiten = true
+	withFloor := func(f float64) baseline.ModelOptions { o := def; o.Floor = f; return o }
 	variants := []variant{
 		{name: "RMS level detector", level: true},
-		{name: "mel mean, no whitening", parts: map[string]bool{"mel_mean": true}, mo: diag},
-		{name: "mel mean, whitened", parts: map[string]bool{"mel_mean": true}, mo: def},
-		{name: "mel mean+std, whitened", parts: map[string]bool{"mel_mean": true, "mel_std": true}, mo: def},
-		{name: "mel mean+fine, whitened", parts: map[string]bool{"mel_mean": true, "fine": true}, mo: def},
-		{name: "all parts, no whitening", parts: all, mo: diag},
-		{name: "all parts, whitened (default)", parts: all, mo: def},
-	}
-	for _, f := range []float64{0.01, 0.02, 0.1, 0.2, 0.5} {
-		o := def
-		o.Floor = f
-		variants = append(variants, variant{name: fmt.Sprintf("all parts, floor %g", f), parts: all, mo: o})
+		{name: "mel mean, standardised only", parts: parts("mel_mean"), mo: diag},
+		{name: "mel mean, whitened", parts: parts("mel_mean"), mo: def},
+		{name: "mel mean+std, whitened", parts: parts("mel_mean", "mel_std"), mo: def},
+		{name: "mel low quantile, standardised only", parts: parts("mel_low"), mo: diag},
+		{name: "mel low quantile, whitened", parts: parts("mel_low"), mo: def},
+		{name: "low + fine, standardised only", parts: parts("mel_low", "fine"), mo: diag},
+		{name: "low + fine, whitened (default)", parts: parts("mel_low", "fine"), mo: def},
+		{name: "low + fine + mean, whitened", parts: parts("mel_low", "fine", "mel_mean"), mo: def},
+		{name: "all four parts, whitened", parts: parts("mel_low", "fine", "mel_mean", "mel_std"), mo: def},
+		{name: "low + fine, floor x0.25", parts: parts("mel_low", "fine"), mo: withFloor(0.25)},
+		{name: "low + fine, floor x4", parts: parts("mel_low", "fine"), mo: withFloor(4)},
 	}
 	var sets []*dataset
 	for _, dir := range flag.Args() {
@@ -251,6 +268,13 @@ func main() {
 			os.Exit(1)
 		}
 		sets = append(sets, ds)
+	}
+	if *dump != "" {
+		if err := writeDump(*dump, sets[0]); err != nil {
+			fmt.Fprintln(os.Stderr, "ablation:", err)
+			os.Exit(1)
+		}
+		return
 	}
 	fmt.Println("| variant | data | AUC | pAUC | AUC at SNR >= 0 dB | mean AUC over faults, SNR >= 0 dB | per fault (SNR >= 0 dB) |")
 	fmt.Println("|---|---|---|---|---|---|---|")
@@ -280,4 +304,51 @@ func main() {
 		n := float64(len(sets))
 		fmt.Printf("| **%s** | **mean** | **%.3f** | **%.3f** | **%.3f** | **%.3f** | |\n", v.name, sa/n, sp/n, s0/n, sf/n)
 	}
+}
+
+// writeDump writes train.bin and test.bin (float32 little-endian rows) with
+// train.csv and test.csv naming the recording and labels of every row, and
+// layout.csv describing the dimensions; for exploring in numpy.
+func writeDump(dir string, ds *dataset) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	write := func(name string, items []item, withCols bool) error {
+		bin, err := os.Create(filepath.Join(dir, name+".bin"))
+		if err != nil {
+			return err
+		}
+		defer bin.Close()
+		idx, err := os.Create(filepath.Join(dir, name+".csv"))
+		if err != nil {
+			return err
+		}
+		defer idx.Close()
+		fmt.Fprintln(idx, "item,label,fault,severity,snr_db,level_dbfs")
+		for i, it := range items {
+			for j, v := range it.vecs {
+				if err := binary.Write(bin, binary.LittleEndian, v); err != nil {
+					return err
+				}
+				fmt.Fprintf(idx, "%d,%d,%s,%s,%s,%.2f\n", i, it.label, it.cols["fault"], it.cols["severity"], it.cols["snr_db"], it.levels[j])
+			}
+		}
+		return nil
+	}
+	if err := write("train", ds.train, false); err != nil {
+		return err
+	}
+	if err := write("test", ds.test, true); err != nil {
+		return err
+	}
+	l, err := os.Create(filepath.Join(dir, "layout.csv"))
+	if err != nil {
+		return err
+	}
+	defer l.Close()
+	fmt.Fprintln(l, "part,lo_hz,hi_hz")
+	for _, d := range ds.layout {
+		fmt.Fprintf(l, "%s,%.2f,%.2f\n", d.Part, d.LoHz, d.HiHz)
+	}
+	return nil
 }
