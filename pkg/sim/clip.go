@@ -54,10 +54,13 @@ func Faults() []string {
 func Severities() []string { return []string{"mild", "moderate", "severe"} }
 
 // SeverityDB returns the design power of a fault component relative to the
-// healthy machine's power, in dB, for the given severity: mild -24 dB,
-// moderate -16 dB, severe -8 dB. The mild value sits near the edge of
-// audibility over the background at the worse SNRs (a design choice, common
-// practice, no source). Unknown severities return -inf-like -200 dB.
+// healthy machine, in dB, measured in the fault's own third-octave bands
+// (those holding 80 % of its power; see inBandRatio): mild -6 dB, moderate
+// 0 dB, severe +6 dB. At mild the fault sits below the machine sound that
+// masks it in its own bands, and further below the background at low SNR:
+// near the edge of audibility (a design choice based on critical-band
+// masking, common practice, no source for the exact values). Unknown
+// severities return -200 dB.
 func SeverityDB(severity string) float64 {
 	switch severity {
 	case "mild":

@@ -41,8 +41,8 @@
 //
 // Caveats: the physics is a plausible sketch, not a validated vibro-acoustic
 // model. Fault severities are set by the radiated power of the fault component
-// relative to the healthy machine at the source, before the room and the
-// microphone; the microphone's low-frequency roll-off then hides much of the
+// relative to the healthy machine at the source, within the fault's own
+// third-octave bands, before the room and the microphone; the microphone's low-frequency roll-off then hides much of the
 // shaft-rate content, as a real microphone would, so low-frequency faults
 // (imbalance, misalignment) are genuinely hard at the mild severity. The
 // machine's acoustic power is assumed proportional to hydraulic power, so its
