@@ -165,7 +165,7 @@ func printEnrolment(w io.Writer, b *baseline.Baseline, path string) {
 	fmt.Fprintf(w, "  model       %d dimensions, %d whitened components, floor %.3g\n", e.Dim, e.Components, b.Options.Floor)
 	fmt.Fprintf(w, "  held out    %d windows in %d folds: median distance %.3f, 99th percentile %.3f\n",
 		c.HeldOutWindows, c.Folds, c.HeldOutMedian, c.HeldOutP99)
-	fmt.Fprintf(w, "  gamma fit   shape %.3g, scale %.3g (Kolmogorov-Smirnov %.3f)\n", c.Shape, c.Scale, c.KS)
+	fmt.Fprintf(w, "  gamma fit   shape %.3g, scale %.3g, location %.3g (Kolmogorov-Smirnov %.3f)\n", c.Shape, c.Scale, c.Loc, c.KS)
 	fmt.Fprintf(w, "  threshold   %.4f for %.2g %% false alarms per window (%.2f %% of held-out windows above it)\n",
 		c.Threshold, 100*c.FalseAlarmProb, 100*c.HeldOutOver)
 	fmt.Fprintf(w, "  expected    %.3g false alarms per day raising on %d of %d windows, one window every %.2f s,\n"+

@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"strconv"
+	"strings"
 	"sync"
 
 	"github.com/auscult/auscult/pkg/baseline"
@@ -110,7 +111,17 @@ type evalReport struct {
 		TPR   float64 `json:"tpr"`
 		FPR   float64 `json:"fpr"`
 	} `json:"suggested_threshold"`
-	Calibrated float64 `json:"calibrated_window_threshold"`
+	Calibrated float64     `json:"calibrated_window_threshold"`
+	Where      string      `json:"where,omitempty"`
+	MeanOver   *meanReport `json:"mean_over,omitempty"`
+}
+
+// meanReport is the mean AUC over the groups of one column (fault types).
+type meanReport struct {
+	Column string  `json:"column"`
+	Groups int     `json:"groups"`
+	Cosine float64 `json:"cosine_auc"`
+	Level  float64 `json:"level_auc"`
 }
 
 func runEvaluate(args []string, stdout, stderr io.Writer) error {
@@ -121,6 +132,8 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 	asJSON := fs.Bool("json", false, "print the report as JSON")
 	channel := fs.Int("channel", -1, "channel to analyse, from 0; -1 mixes all channels")
 	jobs := fs.Int("jobs", runtime.NumCPU(), "files analysed in parallel")
+	where := fs.String("where", "", "evaluate only rows matching COLUMN OP VALUE, e.g. \"snr_db>=0\" (OP one of = != < <= > >=)")
+	meanOver := fs.String("mean-over", "fault", "also report the mean AUC over the groups of this column")
 	dirs, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -136,6 +149,11 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if *where != "" {
+		if ls, err = ls.filter(*where); err != nil {
+			return err
+		}
+	}
 	paths := make([]string, len(ls.files))
 	for i, f := range ls.files {
 		paths[i] = filepath.Join(dirs[0], f)
@@ -144,7 +162,8 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	rep, err := buildReport(b, ls, results)
+	rep, err := buildReport(b, ls, results, *meanOver)
+	rep.Where = *where
 	if err != nil {
 		return err
 	}
@@ -180,7 +199,7 @@ func analyseAll(b *baseline.Baseline, paths []string, channel, jobs int, stderr 
 		go func() {
 			defer wg.Done()
 			for i := range next {
-				results[i], errs[i] = analyseFile(p, paths[i], channel, false)
+				results[i], errs[i] = analyseFile(p, paths[i], analyseOptions{channel: channel})
 				mu.Lock()
 				prog.step(results[i].seconds)
 				mu.Unlock()
@@ -213,7 +232,7 @@ func score2(labels []int, scores []float64) (metrics, error) {
 	return metrics{a, p}, err
 }
 
-func buildReport(b *baseline.Baseline, ls labelSet, rs []fileResult) (*evalReport, error) {
+func buildReport(b *baseline.Baseline, ls labelSet, rs []fileResult, meanOver string) (*evalReport, error) {
 	cos, lev := scoresOf(b, scorerCosine, rs), scoresOf(b, scorerLevel, rs)
 	rep := &evalReport{Baseline: b.ID, Recordings: len(rs), MaxFPR: maxFPR, Calibrated: b.Calib.Threshold}
 	for _, l := range ls.labels {
@@ -247,8 +266,20 @@ func buildReport(b *baseline.Baseline, ls labelSet, rs []fileResult) (*evalRepor
 			Cosine: metrics{g.AUC, g.PAUC}, Level: metrics{gl[i].AUC, gl[i].PAUC}, Note: g.Err}
 		rep.Groups = append(rep.Groups, gr)
 	}
+	var n int
+	var sc, sl float64
+	for _, g := range rep.Groups {
+		if g.Column == meanOver && g.Note == "" {
+			n++
+			sc += g.Cosine.AUC
+			sl += g.Level.AUC
+		}
+	}
+	if n > 0 {
+		rep.MeanOver = &meanReport{Column: meanOver, Groups: n, Cosine: sc / float64(n), Level: sl / float64(n)}
+	}
 	thr, tpr, fpr, err := eval.SuggestThreshold(ls.labels, cos, maxFPR)
-	if err == nil {
+	if err == nil && !math.IsInf(thr, 0) {
 		rep.Suggested.Score, rep.Suggested.TPR, rep.Suggested.FPR = thr, tpr, fpr
 	}
 	return rep, nil
@@ -257,6 +288,9 @@ func buildReport(b *baseline.Baseline, ls labelSet, rs []fileResult) (*evalRepor
 func printReport(w io.Writer, r *evalReport) {
 	fmt.Fprintf(w, "evaluation against baseline %s: %d recordings, %d normal, %d anomalous\n",
 		r.Baseline, r.Recordings, r.Recordings-r.Anomalies, r.Anomalies)
+	if r.Where != "" {
+		fmt.Fprintf(w, "only recordings where %s\n", r.Where)
+	}
 	fmt.Fprintf(w, "pAUC is the McClish-standardised partial AUC up to a false-positive rate of %.1f\n\n", r.MaxFPR)
 	fmt.Fprintf(w, "%-28s %5s %5s   %-13s   %-13s\n", "", "", "", "  embedding", "level detector")
 	fmt.Fprintf(w, "%-28s %5s %5s   %6s %6s   %6s %6s\n", "group", "n", "anom", "AUC", "pAUC", "AUC", "pAUC")
@@ -276,7 +310,10 @@ func printReport(w io.Writer, r *evalReport) {
 		}
 		row("  "+g.Value, g.N, g.Anomalies, g.Cosine, g.Level, g.Note)
 	}
-	if !math.IsNaN(r.Suggested.Score) && r.Suggested.Score != 0 {
+	if m := r.MeanOver; m != nil {
+		fmt.Fprintf(w, "%-28s %5s %5s   %6.3f %6s   %6.3f\n", "mean over "+m.Column+" groups", "", "", m.Cosine, "", m.Level)
+	}
+	if r.Suggested.Score != 0 {
 		fmt.Fprintf(w, "\nsuggested file-score threshold %.4f: flags %.0f %% of anomalous and %.0f %% of normal recordings\n",
 			r.Suggested.Score, 100*r.Suggested.TPR, 100*r.Suggested.FPR)
 	}
@@ -304,4 +341,48 @@ func writeROC(path string, b *baseline.Baseline, ls labelSet, rs []fileResult, r
 		return err
 	}
 	return f.Close()
+}
+
+// filter keeps the rows matching a "COLUMN OP VALUE" condition; numbers
+// compare as numbers, anything else as text (= and != only).
+func (ls labelSet) filter(cond string) (labelSet, error) {
+	var col, op, val string
+	for _, o := range []string{">=", "<=", "!=", "=", "<", ">"} {
+		if i := strings.Index(cond, o); i > 0 {
+			col, op, val = strings.TrimSpace(cond[:i]), o, strings.TrimSpace(cond[i+len(o):])
+			break
+		}
+	}
+	vals, ok := ls.groups[col]
+	if op == "" || !ok {
+		return ls, usagef("--where %q: want COLUMN OP VALUE with a column of the labels file and OP one of = != < <= > >=", cond)
+	}
+	num, numErr := strconv.ParseFloat(val, 64)
+	out := labelSet{columns: ls.columns, groups: map[string][]string{}}
+	for i, f := range ls.files {
+		v := vals[i]
+		var keep bool
+		x, err := strconv.ParseFloat(v, 64)
+		switch {
+		case numErr == nil && err == nil:
+			keep = map[string]bool{">=": x >= num, "<=": x <= num, "!=": x != num, "=": x == num, "<": x < num, ">": x > num}[op]
+		case op == "=":
+			keep = v == val
+		case op == "!=":
+			keep = v != val
+		default:
+			return ls, usagef("--where %q: row %d has %s %q, not a number", cond, i+1, col, v)
+		}
+		if keep {
+			out.files = append(out.files, f)
+			out.labels = append(out.labels, ls.labels[i])
+			for _, c := range ls.columns {
+				out.groups[c] = append(out.groups[c], ls.groups[c][i])
+			}
+		}
+	}
+	if len(out.files) == 0 {
+		return out, fmt.Errorf("--where %q: no rows match", cond)
+	}
+	return out, nil
 }

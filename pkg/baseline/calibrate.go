@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/auscult/auscult/pkg/gamma"
@@ -12,10 +13,11 @@ import (
 // Calibration turns distances into a threshold with a stated false-alarm
 // rate.
 type Calibration struct {
-	// Shape and Scale are the gamma distribution fitted to held-out healthy
-	// distances (location 0).
+	// Shape, Scale and Loc are the gamma distribution fitted to the
+	// held-out healthy distances.
 	Shape float64 `json:"gamma_shape"`
 	Scale float64 `json:"gamma_scale"`
+	Loc   float64 `json:"gamma_loc"`
 	// KS is the Kolmogorov-Smirnov statistic of that fit (smaller is better).
 	KS float64 `json:"gamma_ks"`
 	// FalseAlarmProb is the per-window false-alarm probability the threshold
@@ -31,7 +33,8 @@ type Calibration struct {
 	StepSeconds   float64 `json:"step_s"`
 	WindowsPerDay float64 `json:"windows_per_day"`
 	// FalseAlarmsPerDay is the expected number of raised alarms per day on
-	// healthy sound if windows were independent (see RaiseRate).
+	// healthy sound if windows were independent (see RaiseRate), using the
+	// larger of FalseAlarmProb and HeldOutOver.
 	FalseAlarmsPerDay float64 `json:"false_alarms_per_day"`
 	// HeldOutWindows is how many held-out windows the fit used, Folds how
 	// many folds they came from, and HeldOutOver the measured share of them
@@ -51,6 +54,10 @@ type CalibrationOptions struct {
 	StepSeconds    float64 // seconds between windows
 	Folds          int     // default 5
 }
+
+// LocFraction places the gamma's fixed location at this fraction of the
+// smallest held-out distance.
+const LocFraction = 0.9
 
 // RaiseRate is the probability that a given window raises an alarm under a
 // k-of-n debounce when every window is over independently with probability
@@ -121,8 +128,15 @@ func Enroll(x [][]float32, groups []int, mo ModelOptions, co CalibrationOptions)
 	return model, cal, nil
 }
 
-// Calibrate fits the gamma distribution to held-out healthy distances and
-// sets the threshold.
+// Calibrate fits a gamma distribution to held-out healthy cosine distances
+// and sets the threshold at its 1 - FalseAlarmProb quantile. Held-out
+// distances have a hard lower edge (no healthy window sits exactly on the
+// mean) and a long upper tail, so the gamma's location is fixed just below
+// the smallest of them (LocFraction of it), as scipy.stats.gamma.fit(x,
+// floc=L) does, and shape and scale are fitted by maximum likelihood to the
+// distances above it. The measured share of held-out windows above the
+// threshold is kept beside the design value; the expected false alarms per
+// day use whichever of the two is larger.
 func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
 	if !(co.FalseAlarmProb > 0 && co.FalseAlarmProb < 0.5) {
 		return Calibration{}, fmt.Errorf("baseline: false-alarm probability must be in (0, 0.5), got %g", co.FalseAlarmProb)
@@ -130,14 +144,22 @@ func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
 	if co.K < 1 || co.N < co.K {
 		return Calibration{}, fmt.Errorf("baseline: debounce needs 1 <= k <= n, got %d of %d", co.K, co.N)
 	}
-	d, err := gamma.Fit(held)
+	if len(held) == 0 {
+		return Calibration{}, errors.New("baseline: no held-out distances to calibrate on")
+	}
+	loc := LocFraction * slices.Min(held)
+	shifted := make([]float64, len(held))
+	for i, v := range held {
+		shifted[i] = v - loc
+	}
+	d, err := gamma.Fit(shifted)
 	if err != nil {
 		return Calibration{}, fmt.Errorf("baseline: gamma fit of %d held-out distances: %w", len(held), err)
 	}
-	c := Calibration{Shape: d.Shape, Scale: d.Scale, KS: gamma.KSStat(held, d),
+	c := Calibration{Shape: d.Shape, Scale: d.Scale, Loc: loc, KS: gamma.KSStat(shifted, d),
 		FalseAlarmProb: co.FalseAlarmProb, K: co.K, N: co.N, StepSeconds: co.StepSeconds,
 		HeldOutWindows: len(held)}
-	c.Threshold = d.Quantile(1 - co.FalseAlarmProb)
+	c.Threshold = loc + d.Quantile(1-co.FalseAlarmProb)
 	over := 0
 	for _, v := range held {
 		if v > c.Threshold {
@@ -145,13 +167,13 @@ func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
 		}
 	}
 	c.HeldOutOver = float64(over) / float64(len(held))
-	sorted := append([]float64(nil), held...)
+	sorted := slices.Clone(held)
 	sort.Float64s(sorted)
 	c.HeldOutMedian = quantile(sorted, 0.5)
 	c.HeldOutP99 = quantile(sorted, 0.99)
 	if co.StepSeconds > 0 {
 		c.WindowsPerDay = 86400 / co.StepSeconds
-		c.FalseAlarmsPerDay = c.WindowsPerDay * RaiseRate(co.FalseAlarmProb, co.K, co.N)
+		c.FalseAlarmsPerDay = c.WindowsPerDay * RaiseRate(max(co.FalseAlarmProb, c.HeldOutOver), co.K, co.N)
 	}
 	return c, nil
 }

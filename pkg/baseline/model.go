@@ -162,9 +162,16 @@ func (s *Scorer) norm2(x []float32) float64 {
 // Distance is the cosine distance between the embedding of x and the
 // enrolled mean embedding, in [0, 1).
 func (s *Scorer) Distance(x []float32) float64 {
-	a := float64(s.m.Anchor)
-	return 1 - a/math.Sqrt(a*a+s.norm2(x))
+	return CosineDistance(float64(s.m.Anchor), s.norm2(x))
 }
+
+// Norm2 is the squared whitened distance of x from the healthy mean: the
+// floored Mahalanobis distance squared.
+func (s *Scorer) Norm2(x []float32) float64 { return s.norm2(x) }
+
+// CosineDistance is the cosine distance between an embedding with anchor a
+// and squared whitened norm d2, and the mean embedding (a, 0, ..., 0).
+func CosineDistance(a, d2 float64) float64 { return 1 - a/math.Sqrt(a*a+d2) }
 
 // Deviations writes the standardised deviation (x - mean)/scale of every
 // dimension into dst (len D) and returns it.
