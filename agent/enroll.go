@@ -6,6 +6,7 @@ import (
 	"strings"
 	"time"
 
+	"github.com/auscult/auscult/pkg/audio"
 	"github.com/auscult/auscult/pkg/baseline"
 	"github.com/auscult/auscult/pkg/embed"
 	"github.com/auscult/auscult/pkg/features"
@@ -30,7 +31,9 @@ type enrollOptions struct {
 func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
 	fc := features.DefaultConfig()
 	fc.Rate = o.rate
-	fc.FMax = float64(o.rate) / 2
+	// Stay inside the resampler's passband, so a recording scores the same
+	// whatever rate it was made at (and clear of any converter's roll-off).
+	fc.FMax = audio.ResamplePassband * float64(o.rate) / 2
 	ec := embed.DefaultConfig()
 	ec.Trim = o.trim
 	ec.Mean, ec.Std, ec.Low, ec.Fine = false, false, false, false
@@ -143,7 +146,7 @@ func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseli
 	co := baseline.CalibrationOptions{FalseAlarmProb: o.faProb, K: o.k, N: o.n, StepSeconds: step, Folds: 5}
 	model, cal, err := baseline.Enroll(vecs, groups, mo, co)
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("enrolment refused:\n%w", err)
 	}
 	var seconds float64
 	for _, r := range recs {

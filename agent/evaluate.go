@@ -190,11 +190,14 @@ func analyseAll(b *baseline.Baseline, paths []string, channel, jobs int, stderr 
 	var wg sync.WaitGroup
 	var mu sync.Mutex // guards prog
 	prog := newProgress(stderr, "evaluating", len(paths))
-	for range jobs {
-		p, err := pipeline.ForBaseline(b)
-		if err != nil {
+	pipes := make([]*pipeline.Pipeline, jobs)
+	for i := range pipes {
+		var err error
+		if pipes[i], err = pipeline.ForBaseline(b); err != nil {
 			return nil, err
 		}
+	}
+	for _, p := range pipes {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()

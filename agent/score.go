@@ -43,6 +43,7 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("score", stderr)
 	blPath := fs.String("baseline", "", "baseline `file` from enroll (required)")
 	windows := fs.Bool("windows", false, "print every analysis window instead of one row per file")
+	report := fs.Bool("report", false, "print a readable verdict per file instead of CSV")
 	scorer := fs.String("scorer", scorerCosine, "cosine (distance from the enrolled healthy sound) or level (RMS level detector)")
 	channel := fs.Int("channel", -1, "channel to analyse, from 0; -1 mixes all channels")
 	paths, err := parse(fs, args)
@@ -54,6 +55,9 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 	}
 	if *scorer != scorerCosine && *scorer != scorerLevel {
 		return usagef("--scorer %q: use %s or %s", *scorer, scorerCosine, scorerLevel)
+	}
+	if *report && *windows {
+		return usagef("--report and --windows exclude each other")
 	}
 	files, err := wavPaths(paths)
 	if err != nil {
@@ -67,23 +71,38 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	opts := analyseOptions{channel: *channel}
+	if *report {
+		opts.dev, opts.threshold = b.Model.NewScorer(), b.Calib.Threshold
+	}
 	out := csv.NewWriter(stdout)
-	if *windows {
+	switch {
+	case *report:
+		fmt.Fprintf(stdout, "baseline %s", b.ID)
+		if b.Asset != "" {
+			fmt.Fprintf(stdout, " (%s)", b.Asset)
+		}
+		fmt.Fprintf(stdout, ", enrolled %s\n\n", b.Created.Format("2006-01-02 15:04 UTC"))
+	case *windows:
 		out.Write([]string{"file", "window", "start_s", "end_s", "score", "level_dbfs", "over"})
-	} else {
+	default:
 		out.Write([]string{"file", "score"})
 	}
 	prog := newProgress(stderr, "scoring", len(files))
 	failed := 0
 	for _, f := range files {
-		r, err := analyseFile(p, f, *channel, false)
+		r, err := analyseFile(p, f, opts)
 		if err != nil {
 			prog.end()
 			fmt.Fprintf(stderr, "auscult score: %v\n", err)
 			failed++
 			continue
 		}
-		if *windows {
+		switch {
+		case *report:
+			printVerdict(stdout, b, r, p.Embedder().Layout())
+			fmt.Fprintln(stdout)
+		case *windows:
 			for _, w := range r.windows {
 				s := windowScore(b, *scorer, w)
 				over := "0"
@@ -93,7 +112,7 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 				out.Write([]string{f, strconv.FormatInt(w.index, 10), ff(w.startS, 3), ff(w.endS, 3),
 					ff(s, 6), ff(w.levelDBFS, 2), over})
 			}
-		} else {
+		default:
 			out.Write([]string{f, ff(fileScore(b, *scorer, r), 6)})
 		}
 		out.Flush()

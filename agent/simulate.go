@@ -26,8 +26,10 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	if *out == "" {
 		return usagef("--out is required")
 	}
-	if *train < 2 || *normal < 1 || *perFault < 0 || *seconds < 1 || *rate < 8000 || *rate > 48000 {
-		return usagef("need --train >= 2, --test-normal >= 1, --per-fault >= 0, --seconds >= 1, --rate 8000..48000")
+	// sim.Plan reads zero as "use the default", so --per-fault 0 would
+	// quietly write 5 recordings per fault and severity: refuse it.
+	if *train < 2 || *normal < 1 || *perFault < 1 || *seconds < 1 || *rate < 8000 || *rate > 48000 {
+		return usagef("need --train >= 2, --test-normal >= 1, --per-fault >= 1, --seconds >= 1, --rate 8000..48000")
 	}
 	opt := sim.DefaultOptions(*seed)
 	opt.TrainClips, opt.TestNormal, opt.TestPerFaultSeverity = *train, *normal, *perFault

@@ -77,6 +77,14 @@ func binom(n, k int) float64 {
 	return r
 }
 
+// MaxThreshold is the largest usable threshold: cosine distances stay
+// below 1, so a threshold near 1 could never be crossed.
+const MaxThreshold = 0.98
+
+// ErrCalibration is returned when the held-out healthy distances cannot
+// give a usable threshold.
+var ErrCalibration = errors.New("baseline: calibration failed")
+
 // ErrTooFewGroups is returned when the healthy data cannot be split into at
 // least two folds for held-out calibration.
 var ErrTooFewGroups = errors.New("baseline: healthy data must hold at least two separate recordings or blocks for held-out calibration")
@@ -154,12 +162,18 @@ func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
 	}
 	d, err := gamma.Fit(shifted)
 	if err != nil {
-		return Calibration{}, fmt.Errorf("baseline: gamma fit of %d held-out distances: %w", len(held), err)
+		return Calibration{}, fmt.Errorf("%w: the gamma fit of %d held-out distances failed (%v); enrol more healthy audio",
+			ErrCalibration, len(held), err)
 	}
 	c := Calibration{Shape: d.Shape, Scale: d.Scale, Loc: loc, KS: gamma.KSStat(shifted, d),
 		FalseAlarmProb: co.FalseAlarmProb, K: co.K, N: co.N, StepSeconds: co.StepSeconds,
 		HeldOutWindows: len(held)}
 	c.Threshold = loc + d.Quantile(1-co.FalseAlarmProb)
+	if !(c.Threshold < MaxThreshold) {
+		return Calibration{}, fmt.Errorf("%w: held-out healthy windows lie so far from the rest (threshold %.4f, limit %.2f) "+
+			"that no fault could stand out; the healthy recordings are too few or differ too much from each other: "+
+			"enrol more healthy audio covering the usual operating range", ErrCalibration, c.Threshold, MaxThreshold)
+	}
 	over := 0
 	for _, v := range held {
 		if v > c.Threshold {

@@ -20,13 +20,14 @@ type Pipeline struct {
 	emb    *embed.Embedder
 	scorer *baseline.Scorer
 	buf    []int16
+	read   int64 // samples read in the current or last run
 	stop   error
 	fn     func(w *embed.Window, score float64) error
 	onWin  func(w *embed.Window)
 }
 
 // New returns a pipeline with the given configuration that does not score
-// (score is NaN-free 0); enrolment uses it.
+// (every score is 0); enrolment uses it.
 func New(fc features.Config, ec embed.Config) (*Pipeline, error) {
 	emb, err := embed.New(fc, ec)
 	if err != nil {
@@ -52,6 +53,9 @@ func ForBaseline(b *baseline.Baseline) (*Pipeline, error) {
 	return p, nil
 }
 
+// SamplesRead is how many samples the current or last Run read.
+func (p *Pipeline) SamplesRead() int64 { return p.read }
+
 // Embedder exposes the pipeline's embedder (for its layout and timing).
 func (p *Pipeline) Embedder() *embed.Embedder { return p.emb }
 
@@ -64,10 +68,11 @@ func (p *Pipeline) Run(src audio.Source, fn func(w *embed.Window, score float64)
 	if r := p.emb.FeatureConfig().Rate; src.Rate() != r {
 		return fmt.Errorf("pipeline: source rate %d Hz, analysis rate %d Hz; resample first", src.Rate(), r)
 	}
-	p.fn, p.stop = fn, nil
+	p.fn, p.stop, p.read = fn, nil, 0
 	defer func() { p.fn = nil }()
 	for {
 		n, err := src.Read(p.buf)
+		p.read += int64(n)
 		if n > 0 {
 			p.emb.Push(p.buf[:n], p.onWin)
 			if p.stop != nil {
