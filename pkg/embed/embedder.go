@@ -46,6 +46,7 @@ type Embedder struct {
 	nMel, nStd, nLow, nFine, dim int
 	// offsets of the parts in a vector
 	offMean, offStd, offLow, offFine int
+	rowSum                           float64   // sum of all log-mel values in the sub-window, when sum is not kept
 	rows                             []float32 // the sub-window's log-mel rows, frames x Mels (for the low quantile)
 	lowCol                           []float32
 
@@ -169,10 +170,18 @@ func (e *Embedder) frame(f []int16) {
 		e.row = e.rows[e.frames*e.fc.Mels : (e.frames+1)*e.fc.Mels]
 	}
 	e.ext.Rows(f, e.row)
-	for b, v := range e.row {
-		x := float64(v)
-		e.sum[b] += x
-		e.sumSq[b] += x * x
+	if e.nMel > 0 || e.nStd > 0 {
+		for b, v := range e.row {
+			x := float64(v)
+			e.sum[b] += x
+			e.sumSq[b] += x * x
+		}
+	} else {
+		var s float32
+		for _, v := range e.row {
+			s += v
+		}
+		e.rowSum += float64(s)
 	}
 	e.frames++
 	if e.frames == e.cfg.SubHops {
@@ -211,7 +220,8 @@ func (e *Embedder) longFrame(f []int16) {
 func (e *Embedder) closeSub() {
 	slot := e.subs[e.subIndex%int64(e.cfg.Window)]
 	inv := 1 / float64(e.frames)
-	var level float64
+	level := e.rowSum * inv
+	e.rowSum = 0
 	for b := 0; b < e.fc.Mels; b++ {
 		m := e.sum[b] * inv
 		level += m
@@ -223,12 +233,8 @@ func (e *Embedder) closeSub() {
 			slot[e.offStd+b] = float32(math.Sqrt(max(v, 0)))
 		}
 		if e.nLow > 0 {
-			col := e.lowCol[:e.frames]
-			for f := range col {
-				col[f] = e.rows[f*e.fc.Mels+b]
-			}
-			insertionSort(col)
-			slot[e.offLow+b] = col[int(e.cfg.LowQuantile*float64(e.frames-1)+0.5)]
+			k := int(e.cfg.LowQuantile*float64(e.frames-1) + 0.5)
+			slot[e.offLow+b] = kthSmallest(e.rows[b:], e.fc.Mels, e.frames, k, e.lowCol)
 		}
 		e.sum[b], e.sumSq[b] = 0, 0
 	}
@@ -277,6 +283,7 @@ func (e *Embedder) Reset() {
 	e.long.Reset()
 	clear(e.sum)
 	clear(e.sumSq)
+	e.rowSum = 0
 	e.frames, e.subIndex, e.fineReady = 0, 0, false
 }
 
@@ -328,4 +335,28 @@ func insertionSort(v []float32) {
 		}
 		v[j+1] = x
 	}
+}
+
+// kthSmallest returns the k-th smallest (from 0) of n values spaced stride
+// apart in x, keeping the k+1 smallest seen so far sorted in buf (len > k):
+// for a low quantile most values are rejected with one comparison.
+func kthSmallest(x []float32, stride, n, k int, buf []float32) float32 {
+	keep := buf[:0]
+	for i := 0; i < n; i++ {
+		v := x[i*stride]
+		if len(keep) == k+1 {
+			if v >= keep[k] {
+				continue
+			}
+			keep = keep[:k]
+		}
+		j := len(keep)
+		keep = append(keep, v)
+		for j > 0 && keep[j-1] > v {
+			keep[j] = keep[j-1]
+			j--
+		}
+		keep[j] = v
+	}
+	return keep[k]
 }

@@ -225,3 +225,25 @@ func BenchmarkEmbedderPush(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.N)*float64(len(x))/16000/b.Elapsed().Seconds(), "x_realtime")
 }
+
+func TestKthSmallest(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	buf := make([]float32, 40)
+	for trial := 0; trial < 200; trial++ {
+		n := 1 + r.IntN(40)
+		stride := 1 + r.IntN(3)
+		x := make([]float32, n*stride)
+		for i := range x {
+			x[i] = float32(r.IntN(20)) // ties included
+		}
+		col := make([]float32, n)
+		for i := range col {
+			col[i] = x[i*stride]
+		}
+		insertionSort(col)
+		k := r.IntN(n)
+		if got := kthSmallest(x, stride, n, k, buf); got != col[k] {
+			t.Fatalf("n %d k %d: got %v, sorted says %v", n, k, got, col[k])
+		}
+	}
+}
