@@ -18,7 +18,7 @@ const (
 	ResampleStopbandDB = 80.0
 	// ResamplePassband is the passband edge as a fraction of the lower
 	// Nyquist frequency min(in, out)/2.
-	ResamplePassband = 0.9
+	ResamplePassband = 0.96
 	// MaxResampleTaps is the largest polyphase filter table (coefficients
 	// over all phases) NewResampler builds; at 4 bytes each this is 8 MiB.
 	MaxResampleTaps = 1 << 21

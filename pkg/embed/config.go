@@ -37,6 +37,9 @@ type Config struct {
 	FineBandsPerOctave int `json:"fine_bands_per_octave"`
 	// LevelNorm subtracts each sub-window's mean log-mel level (default true).
 	LevelNorm bool `json:"level_norm"`
+	// LevelRMS takes the sub-window's RMS level instead of its mean log-mel
+	// level as the level to subtract (experimental, default false).
+	LevelRMS bool `json:"level_rms,omitempty"`
 }
 
 // DefaultConfig returns the configuration used unless a baseline says otherwise.

@@ -239,6 +239,9 @@ func (e *Embedder) closeSub() {
 		e.sum[b], e.sumSq[b] = 0, 0
 	}
 	level /= float64(e.fc.Mels)
+	if e.cfg.LevelRMS {
+		level = 10 * math.Log10(max(e.subPower, 1e-12))
+	}
 	if !e.cfg.LevelNorm {
 		level = 0
 	}

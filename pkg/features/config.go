@@ -36,7 +36,7 @@ func DefaultConfig() Config {
 		Hop:      512,
 		Mels:     128,
 		FMin:     0,
-		FMax:     7200, // 0.9 x Nyquist: inside resampler and converter passbands
+		FMax:     8000,
 		FloorDB:  -100,
 	}
 }

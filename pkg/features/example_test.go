@@ -37,7 +37,7 @@ func ExampleExtractor() {
 		}
 	}
 	fmt.Printf("%d frames; loudest band %d, centre %.0f Hz, %.1f dB\n", frames, best, ex.Bank().Centers()[best], row[best])
-	// Output: 61 frames; loudest band 46, centre 993 Hz, -1.6 dB
+	// Output: 61 frames; loudest band 44, centre 986 Hz, -2.5 dB
 }
 
 // DB converts power to decibels without a logarithm call.

@@ -34,7 +34,7 @@ OUT_RATE = 16000
 RATES = (8000, 44100, 48000)
 DURATION = 0.5
 STOPBAND_DB = 80.0
-PASSBAND = 0.9  # passband edge as a fraction of the lower Nyquist
+PASSBAND = 0.96  # passband edge as a fraction of the lower Nyquist
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 DEST = os.path.join(HERE, "..", "..", "testdata", "audio")
