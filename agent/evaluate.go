@@ -133,6 +133,7 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 	channel := fs.Int("channel", -1, "channel to analyse, from 0; -1 mixes all channels")
 	jobs := fs.Int("jobs", runtime.NumCPU(), "files analysed in parallel")
 	where := fs.String("where", "", "evaluate only rows matching COLUMN OP VALUE, e.g. \"snr_db>=0\" (OP one of = != < <= > >=)")
+	by := fs.String("by", "", "report groups only for these comma-separated columns (default: every column)")
 	meanOver := fs.String("mean-over", "fault", "also report the mean AUC over the groups of this column")
 	dirs, err := parse(fs, args)
 	if err != nil {
@@ -153,6 +154,17 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 		if ls, err = ls.filter(*where); err != nil {
 			return err
 		}
+	}
+	if *by != "" {
+		var keep []string
+		for _, c := range strings.Split(*by, ",") {
+			c = strings.TrimSpace(c)
+			if _, ok := ls.groups[c]; !ok {
+				return usagef("--by: the labels file has no column %q (it has %s)", c, strings.Join(ls.columns, ", "))
+			}
+			keep = append(keep, c)
+		}
+		ls.columns = keep
 	}
 	paths := make([]string, len(ls.files))
 	for i, f := range ls.files {

@@ -30,41 +30,72 @@ func raises(r fileResult, thr float64, k, n int) (raised bool, over int) {
 	return raised, over
 }
 
-// deviation is one dimension's mean standardised deviation.
+// deviation is a band range whose standardised deviation stands out.
 type deviation struct {
-	dim embed.Dim
-	sd  float64
+	dim embed.Dim // Part, and LoHz..HiHz over the whole merged range
+	sd  float64   // the largest mean deviation in the range, signed
 }
 
-// topDeviations returns the n dimensions that deviate most, one per band
-// and part.
+// topDeviations returns up to n frequency ranges that deviate most: the
+// strongest dimensions, with neighbouring bands of the same part that
+// deviate the same way merged into one range.
 func topDeviations(r fileResult, layout []embed.Dim, n int) []deviation {
-	var all []deviation
-	for i, s := range r.devSum {
-		all = append(all, deviation{layout[i], s / float64(max(r.devCount, 1))})
+	idx := make([]int, len(r.devSum))
+	for i := range idx {
+		idx[i] = i
 	}
-	sort.Slice(all, func(i, j int) bool { return math.Abs(all[i].sd) > math.Abs(all[j].sd) })
-	return all[:min(n, len(all))]
+	mean := func(i int) float64 { return r.devSum[i] / float64(max(r.devCount, 1)) }
+	sort.Slice(idx, func(a, b int) bool { return math.Abs(mean(idx[a])) > math.Abs(mean(idx[b])) })
+	strong := map[int]bool{}
+	for _, i := range idx[:min(4*n, len(idx))] {
+		strong[i] = true
+	}
+	used := map[int]bool{}
+	var out []deviation
+	for _, i := range idx {
+		if len(out) == n || !strong[i] {
+			break
+		}
+		if used[i] {
+			continue
+		}
+		d := deviation{dim: layout[i], sd: mean(i)}
+		used[i] = true
+		same := func(j int) bool {
+			return j >= 0 && j < len(layout) && strong[j] && !used[j] && layout[j].Part == d.dim.Part &&
+				(mean(j) > 0) == (d.sd > 0)
+		}
+		for j := i - 1; same(j); j-- {
+			used[j] = true
+			d.dim.LoHz = layout[j].LoHz
+		}
+		for j := i + 1; same(j); j++ {
+			used[j] = true
+			d.dim.HiHz = layout[j].HiHz
+		}
+		out = append(out, d)
+	}
+	return out
 }
 
 func describeDim(d deviation) string {
-	band := fmt.Sprintf("%s-%s", hz(d.dim.LoHz), hz(d.dim.HiHz))
-	dir := "louder"
+	band := fmt.Sprintf("%s to %s", hz(d.dim.LoHz), hz(d.dim.HiHz))
+	more, what := "louder", "steady sound"
 	if d.sd < 0 {
-		dir = "quieter"
+		more = "quieter"
 	}
 	switch d.dim.Part {
 	case "mel_std":
-		if d.sd > 0 {
-			dir = "more fluctuation"
-		} else {
-			dir = "less fluctuation"
+		what, more = "fluctuation", "more"
+		if d.sd < 0 {
+			more = "less"
 		}
-		return fmt.Sprintf("%-24s %s", "fluctuation "+band, dir)
 	case "fine":
-		return fmt.Sprintf("%-24s %s", "low-frequency "+band, dir)
+		what = "low-frequency lines"
+	case "mel_mean":
+		what = "average sound"
 	}
-	return fmt.Sprintf("%-24s %s", "spectrum "+band, dir)
+	return fmt.Sprintf("%s, %s, %s", what, band, more)
 }
 
 func hz(f float64) string {
@@ -93,7 +124,7 @@ func printVerdict(w io.Writer, b *baseline.Baseline, r fileResult, layout []embe
 	}
 	fmt.Fprintf(w, "%s\n", r.path)
 	fmt.Fprintf(w, "  verdict     %s\n", verdict)
-	fmt.Fprintf(w, "  windows     %d of %d over the threshold %.4f (an alarm needs %d of %d in a row)\n",
+	fmt.Fprintf(w, "  windows     %d of %d over the threshold %.4f (an alarm needs %d of the last %d)\n",
 		over, len(r.windows), c.Threshold, c.K, c.N)
 	fmt.Fprintf(w, "  score       mean %.4f, highest %.4f\n", r.meanScore(), mx)
 	fmt.Fprintf(w, "  level       %.1f dBFS (baseline %.1f dBFS)\n", lv, b.Level.MeanDBFS)
@@ -103,7 +134,7 @@ func printVerdict(w io.Writer, b *baseline.Baseline, r fileResult, layout []embe
 			if i == 0 {
 				label = "deviates"
 			}
-			fmt.Fprintf(w, "  %-11s %+5.1f sd  %s\n", label, d.sd, describeDim(d))
+			fmt.Fprintf(w, "  %-11s %+6.1f sd  %s\n", label, d.sd, describeDim(d))
 		}
 	}
 }

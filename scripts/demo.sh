@@ -24,9 +24,9 @@ step "0. Building auscult"
 echo "built $bin ($("$bin" version))"
 
 step "1. Recording the healthy pump after commissioning (simulated, seed 7)"
-echo "30 healthy recordings for the baseline, then a test set of 30 healthy and"
+echo "60 healthy recordings for the baseline, then a test set of 40 healthy and"
 echo "2 recordings of every fault at every severity, all 10 s long."
-sim="$("$bin" simulate --out "$data" --seed 7 --train 30 --test-normal 30 --per-fault 2)"
+sim="$("$bin" simulate --out "$data" --seed 7 --train 60 --test-normal 40 --per-fault 2)"
 echo "$sim"
 asset="$(sed -n 's/.*, pump \([^:]*\):.*/\1/p' <<<"$sim")"
 [ -n "$asset" ] || { echo "demo.sh: could not read the pump's tag from: $sim" >&2; exit 1; }
@@ -67,7 +67,7 @@ esac
 
 step "6. Measuring detection over the whole test set"
 roc="$work/roc.svg"
-"$bin" evaluate --baseline "$baseline" --labels "$labels" --roc "$roc" "$data/test"
+"$bin" evaluate --baseline "$baseline" --labels "$labels" --roc "$roc" --by fault,severity,snr_band "$data/test"
 echo
 echo "ROC curves written to $roc"
 echo "All files of this run are in $work (remove it with: rm -r '$work')"

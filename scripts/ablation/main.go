@@ -224,15 +224,34 @@ func run(ds *dataset, v variant) (result, error) {
 func main() {
 	only := flag.String("only", "", "run only variants whose name contains this")
 	fineBPO := flag.Int("finebpo", embed.DefaultConfig().FineBandsPerOctave, "fine view bands per octave")
+	mels := flag.Int("mels", 0, "mel bands (0: the default)")
+	trim := flag.Int("trim", -1, "values trimmed at each end (-1: the default)")
+	window := flag.Int("window", 0, "sub-windows per analysis window (0: the default)")
+	fmax := flag.Float64("fmax", 0, "upper edge of the mel bands in Hz (0: the default)")
+	levelRMS := flag.Bool("levelrms", false, "subtract the RMS level instead of the mean band level")
 	lowQ := flag.Float64("lowq", embed.DefaultConfig().LowQuantile, "quantile of the low part")
 	levelNorm := flag.Bool("levelnorm", true, "subtract each sub-window's level")
 	dump := flag.String("dump", "", "write the window vectors of the first data set to this folder (float32 .bin files and an index) and stop")
 	flag.Parse()
 	fc := features.DefaultConfig()
+	fc.FMax = audio.ResamplePassband * float64(fc.Rate) / 2 // as enroll does
+	if *fmax > 0 {
+		fc.FMax = *fmax
+	}
+	if *mels > 0 {
+		fc.Mels = *mels
+	}
 	ec := embed.DefaultConfig()
 	ec.LevelNorm = *levelNorm
 	ec.Mean, ec.Std, ec.Low, ec.Fine = true, true, true, true // every part, picked per variant
 	ec.LowQuantile = *lowQ
+	ec.LevelRMS = *levelRMS
+	if *window > 0 {
+		ec.Window = *window
+	}
+	if *trim >= 0 {
+		ec.Trim = *trim
+	}
 	ec.FineBandsPerOctave = *fineBPO
 	parts := func(names ...string) map[string]bool {
 		m := map[string]bool{}
