@@ -18,6 +18,8 @@ type progress struct {
 	start time.Time
 	last  time.Time
 	verb  string
+	// cleared is set when end erased the line since it was last drawn.
+	cleared bool
 }
 
 func newProgress(w io.Writer, verb string, total int) *progress {
@@ -39,9 +41,10 @@ func (p *progress) step(seconds float64) {
 		return
 	}
 	now := time.Now()
-	if now.Sub(p.last) < 200*time.Millisecond && p.done < p.total {
+	if now.Sub(p.last) < 200*time.Millisecond && p.done < p.total && !p.cleared {
 		return
 	}
+	p.cleared = false
 	p.last = now
 	el := now.Sub(p.start).Seconds()
 	rate := p.audio / max(el, 1e-9)
@@ -50,9 +53,11 @@ func (p *progress) step(seconds float64) {
 		(time.Duration(left) * time.Second).Round(time.Second))
 }
 
-// end clears the progress line.
+// end clears the progress line; the next step draws it again, so call it
+// before writing other output to the same terminal.
 func (p *progress) end() {
 	if p.on && p.done > 0 {
 		fmt.Fprint(p.w, "\r\033[K")
+		p.cleared = true
 	}
 }

@@ -98,6 +98,7 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 			failed++
 			continue
 		}
+		prog.end() // keep the progress line off the results on a shared terminal
 		switch {
 		case *report:
 			printVerdict(stdout, b, r, p.Embedder().Layout())
