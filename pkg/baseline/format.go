@@ -200,6 +200,10 @@ func (b *Baseline) Save(path string) error {
 		tmp.Close()
 		return fmt.Errorf("baseline: write %s: %w", path, err)
 	}
+	if err := tmp.Chmod(0o644); err != nil { // CreateTemp makes 0600; a baseline is not secret
+		tmp.Close()
+		return fmt.Errorf("baseline: %w", err)
+	}
 	if err := tmp.Sync(); err != nil {
 		tmp.Close()
 		return fmt.Errorf("baseline: sync %s: %w", path, err)
