@@ -19,9 +19,9 @@ work=${BENCH_DIR:-$(mktemp -d)}
 echo "bench: working in $work"
 go build -o "$work/auscult" ./agent
 A="$work/auscult"
+[ -d "$work/sim/train" ] || "$A" simulate --out "$work/sim" --seed 1 --train 60 --test-normal 1 --per-fault 1 >/dev/null
+"$A" enroll --out "$work/bench.baseline" "$work/sim/train" >/dev/null
 if [ ! -f "$work/hour.wav" ]; then
-  "$A" simulate --out "$work/sim" --seed 1 --train 24 --test-normal 1 --per-fault 1 >/dev/null
-  "$A" enroll --out "$work/bench.baseline" "$work/sim/train" >/dev/null
   # One hour: healthy recordings repeated end to end (sox concatenates).
   files=("$work"/sim/train/*.wav)
   list=(); while [ "${#list[@]}" -lt 360 ]; do list+=("${files[@]}"); done

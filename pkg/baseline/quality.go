@@ -28,7 +28,7 @@ type QualityLimits struct {
 
 // DefaultQualityLimits returns the limits enrolment applies by default.
 func DefaultQualityLimits() QualityLimits {
-	return QualityLimits{MinSeconds: 180, MinWindows: 80, SilentDBFS: -70, MaxClip: 0.001,
+	return QualityLimits{MinSeconds: 300, MinWindows: 120, SilentDBFS: -70, MaxClip: 0.001,
 		MaxSpreadDB: 20, MaxAcrossDB: 25}
 }
 
