@@ -26,5 +26,7 @@ echo "== benchmarks compile and run once"
 go test -run '^$' -bench . -benchtime 1x ./... >/dev/null
 echo "== fuzz the WAV parser briefly"
 go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio >/dev/null
+echo "== race detector on the concurrent parts"
+go test -count=1 -race ./agent ./pkg/pipeline >/dev/null
 echo "== tests"
 go test -count=1 ./...
