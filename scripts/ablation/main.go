@@ -228,6 +228,8 @@ func main() {
 	trim := flag.Int("trim", -1, "values trimmed at each end (-1: the default)")
 	window := flag.Int("window", 0, "sub-windows per analysis window (0: the default)")
 	fmax := flag.Float64("fmax", 0, "upper edge of the mel bands in Hz (0: the default)")
+	fineMin := flag.Float64("finemin", 0, "lower edge of the fine view in Hz (0: the default)")
+	fineMax := flag.Float64("finemax", 0, "upper edge of the fine view in Hz (0: the default)")
 	levelRMS := flag.Bool("levelrms", false, "subtract the RMS level instead of the mean band level")
 	lowQ := flag.Float64("lowq", embed.DefaultConfig().LowQuantile, "quantile of the low part")
 	levelNorm := flag.Bool("levelnorm", true, "subtract each sub-window's level")
@@ -246,6 +248,12 @@ func main() {
 	ec.Mean, ec.Std, ec.Low, ec.Fine = true, true, true, true // every part, picked per variant
 	ec.LowQuantile = *lowQ
 	ec.LevelRMS = *levelRMS
+	if *fineMin > 0 {
+		ec.FineFMin = *fineMin
+	}
+	if *fineMax > 0 {
+		ec.FineFMax = *fineMax
+	}
 	if *window > 0 {
 		ec.Window = *window
 	}
