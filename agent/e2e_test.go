@@ -55,6 +55,7 @@ func TestSimulatedSkid(t *testing.T) {
 	t.Run("bad input", func(t *testing.T) { checkBadInput(t, s, test) })
 	t.Run("refused re-enrolment keeps the baseline", func(t *testing.T) { checkReenrol(t, s) })
 	t.Run("44.1 kHz stereo 24-bit", func(t *testing.T) { checkResampled(t, s, test) })
+	t.Run("microphone gain drift", func(t *testing.T) { checkGainDrift(t, s, test, lab, b.Calib.Threshold) })
 }
 
 // readLabelsCSV maps file name to label from a simulated labels.csv.
