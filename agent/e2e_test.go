@@ -55,6 +55,7 @@ func TestSimulatedSkid(t *testing.T) {
 	t.Run("bad input", func(t *testing.T) { checkBadInput(t, s, test) })
 	t.Run("refused re-enrolment keeps the baseline", func(t *testing.T) { checkReenrol(t, s) })
 	t.Run("44.1 kHz stereo 24-bit", func(t *testing.T) { checkResampled(t, s, test) })
+	t.Run("options that cannot work", func(t *testing.T) { checkSelectionErrors(t, s, test) })
 	t.Run("microphone gain drift", func(t *testing.T) { checkGainDrift(t, s, test, lab, b.Calib.Threshold) })
 }
 
@@ -97,7 +98,7 @@ func fileScores(t *testing.T, out string, files int) map[string]float64 {
 
 var (
 	reID       = regexp.MustCompile(`^baseline ([0-9a-f]{12}) written to (.+)$`)
-	reThresh   = regexp.MustCompile(`threshold\s+([0-9.]+) for ([0-9.e+-]+) % false alarms per window`)
+	reThresh   = regexp.MustCompile(`alarm at\s+([0-9.]+), set for ([0-9.e+-]+) % of healthy windows`)
 	reExpected = regexp.MustCompile(`expected\s+([0-9.e+-]+) false alarms per day raising on (\d+) of (\d+) windows, one window every ([0-9.]+) s`)
 )
 
@@ -191,8 +192,16 @@ func checkWindows(t *testing.T, s skid, b *baseline.Baseline, test string, cosin
 		if end <= start || math.Abs(end-start-length) > 2e-3 {
 			t.Errorf("%v: window from %v to %v s, others last %v s", r, start, end, length)
 		}
-		if want := sc > b.Calib.Threshold; (r[6] == "1") != want && math.Abs(sc-b.Calib.Threshold) > 1e-6 {
-			t.Errorf("%v: over=%s but threshold is %v", r, r[6], b.Calib.Threshold)
+		want := ""
+		switch {
+		case sc > b.Calib.Threshold:
+			want = "alarm"
+		case sc > b.Calib.WarnThreshold:
+			want = "warning"
+		}
+		near := math.Abs(sc-b.Calib.Threshold) < 1e-6 || math.Abs(sc-b.Calib.WarnThreshold) < 1e-6
+		if r[6] != want && !near {
+			t.Errorf("%v: over=%q, want %q (alarm level %v, warning level %v)", r, r[6], want, b.Calib.Threshold, b.Calib.WarnThreshold)
 		}
 		sum[f] += sc
 		count[f]++
@@ -220,7 +229,8 @@ func checkReport(t *testing.T, s skid, b *baseline.Baseline, test string, files 
 	}
 	for _, v := range verdicts {
 		switch {
-		case v[1] == "sounds healthy", strings.HasPrefix(v[1], "ALARM:"), strings.HasPrefix(v[1], "borderline:"):
+		case v[1] == "sounds healthy", strings.HasPrefix(v[1], "ALARM:"), strings.HasPrefix(v[1], "WARNING:"),
+			strings.HasPrefix(v[1], "borderline:"):
 		default:
 			t.Errorf("unknown verdict %q", v[1])
 		}

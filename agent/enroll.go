@@ -1,8 +1,11 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
 	"strings"
 	"time"
 
@@ -18,19 +21,32 @@ const blockSeconds = 60
 
 // enrollOptions are the settings shared by enroll and the ablation tooling.
 type enrollOptions struct {
-	asset   string
-	rate    int
-	channel int
-	faProb  float64
-	k, n    int
-	floor   float64
-	parts   string
-	trim    int
+	asset    string
+	rate     int
+	channel  int
+	faProb   float64
+	warnProb float64
+	k, n     int
+	floor    float64
+	parts    string
+	trim     int
 }
 
 func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
 	fc := features.DefaultConfig()
+	if o.rate < 8000 || o.rate > 48000 {
+		return fc, embed.Config{}, usagef("--rate %d: the analysis rate must be 8000 to 48000 Hz", o.rate)
+	}
 	fc.Rate = o.rate
+	// Frames of about 64 ms at any rate: 1024 samples at 16 kHz.
+	fc.FrameLen = 1024
+	for fc.FrameLen*16000 < 1024*o.rate*3/4 {
+		fc.FrameLen *= 2
+	}
+	for fc.FrameLen*16000 > 1024*o.rate*3/2 {
+		fc.FrameLen /= 2
+	}
+	fc.Hop = fc.FrameLen / 2
 	// Stay inside the resampler's passband, so a recording scores the same
 	// whatever rate it was made at (and clear of any converter's roll-off).
 	fc.FMax = audio.ResamplePassband * float64(o.rate) / 2
@@ -67,7 +83,8 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	fs.StringVar(&o.asset, "asset", "", "asset tag stored in the baseline, e.g. P-101A")
 	fs.IntVar(&o.rate, "rate", 16000, "analysis sample rate in Hz; recordings are resampled to it")
 	fs.IntVar(&o.channel, "channel", -1, "channel to analyse, from 0; -1 mixes all channels")
-	fs.Float64Var(&o.faProb, "false-alarm-prob", 0.002, "per-window false-alarm probability the threshold is set for")
+	fs.Float64Var(&o.faProb, "false-alarm-prob", 0.002, "per-window false-alarm probability the alarm threshold is set for")
+	fs.Float64Var(&o.warnProb, "warn-prob", 0.02, "per-window probability the lower warning threshold is set for")
 	debounce := fs.String("debounce", "3/5", "raise after K of N windows over threshold, as K/N")
 	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "scale of the eigenvalue floor (1 = the sampling-noise edge)")
 	fs.StringVar(&o.parts, "parts", "low,fine", "embedding parts: low (quiet floor per mel band), fine (low-frequency lines), mean, std")
@@ -81,6 +98,22 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	}
 	if _, err := fmt.Sscanf(*debounce, "%d/%d", &o.k, &o.n); err != nil || o.k < 1 || o.n < o.k {
 		return usagef("--debounce %q: want K/N with 1 <= K <= N, e.g. 3/5", *debounce)
+	}
+	switch {
+	case !(o.faProb > 0 && o.faProb < 0.5):
+		return usagef("--false-alarm-prob %g: want a probability between 0 and 0.5, e.g. 0.002", o.faProb)
+	case !(o.warnProb > o.faProb && o.warnProb < 0.5):
+		return usagef("--warn-prob %g: want a probability above --false-alarm-prob (%g) and below 0.5", o.warnProb, o.faProb)
+	case !(o.floor > 0):
+		return usagef("--floor %g: want a positive scale, 1 is the default", o.floor)
+	case o.trim < 0:
+		return usagef("--trim %d: want 0 or more", o.trim)
+	}
+	if _, _, err := o.configs(); err != nil {
+		return err
+	}
+	if err := writable(*out); err != nil {
+		return err
 	}
 	files, err := wavPaths(paths)
 	if err != nil {
@@ -143,7 +176,7 @@ func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseli
 	mo.Floor = o.floor
 	mo.Redundancy = float64(ec.Window) / float64(dense.Step)
 	step := float64(ec.Step*ec.SubHops*fc.Hop) / float64(fc.Rate)
-	co := baseline.CalibrationOptions{FalseAlarmProb: o.faProb, K: o.k, N: o.n, StepSeconds: step, Folds: 5}
+	co := baseline.CalibrationOptions{FalseAlarmProb: o.faProb, WarnProb: o.warnProb, K: o.k, N: o.n, StepSeconds: step, Folds: 5}
 	model, cal, err := baseline.Enroll(vecs, groups, mo, co)
 	if err != nil {
 		return nil, fmt.Errorf("enrolment refused:\n%w", err)
@@ -169,10 +202,24 @@ func printEnrolment(w io.Writer, b *baseline.Baseline, path string) {
 	fmt.Fprintf(w, "  held out    %d windows in %d folds: median distance %.3f, 99th percentile %.3f\n",
 		c.HeldOutWindows, c.Folds, c.HeldOutMedian, c.HeldOutP99)
 	fmt.Fprintf(w, "  gamma fit   shape %.3g, scale %.3g, location %.3g (Kolmogorov-Smirnov %.3f)\n", c.Shape, c.Scale, c.Loc, c.KS)
-	fmt.Fprintf(w, "  threshold   %.4f for %.2g %% false alarms per window (%.2f %% of held-out windows above it)\n",
+	fmt.Fprintf(w, "  alarm at    %.4f, set for %.2g %% of healthy windows (%.2f %% of held-out windows are above it)\n",
 		c.Threshold, 100*c.FalseAlarmProb, 100*c.HeldOutOver)
+	fmt.Fprintf(w, "  warning at  %.4f, set for %.2g %% of healthy windows (%.2f %% of held-out windows are above it)\n",
+		c.WarnThreshold, 100*c.WarnProb, 100*c.HeldOutOverWarn)
 	fmt.Fprintf(w, "  expected    %.3g false alarms per day raising on %d of %d windows, one window every %.2f s,\n"+
 		"              if windows were independent (overlap makes them less so)\n",
 		c.FalseAlarmsPerDay, c.K, c.N, c.StepSeconds)
 	fmt.Fprintf(w, "  level       %.1f dBFS mean, %.1f dB standard deviation\n", b.Level.MeanDBFS, b.Level.StdDB)
+}
+
+// writable checks, before any analysis, that a file can be created beside
+// path, so a long enrolment does not fail at its last step.
+func writable(path string) error {
+	dir := filepath.Dir(path)
+	f, err := os.CreateTemp(dir, ".auscult-check-*")
+	if err != nil {
+		return fmt.Errorf("--out %s: cannot write into %s: %w", path, dir, errors.Unwrap(err))
+	}
+	f.Close()
+	return os.Remove(f.Name())
 }

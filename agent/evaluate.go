@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -56,6 +57,7 @@ func readLabels(path string) (labelSet, error) {
 	if fileCol < 0 || labelCol < 0 {
 		return ls, fmt.Errorf("%s: header must name the columns file and label, got %v", path, head)
 	}
+	seen := map[string]int{}
 	for line := 2; ; line++ {
 		rec, err := rd.Read()
 		if errors.Is(err, io.EOF) {
@@ -68,6 +70,10 @@ func readLabels(path string) (labelSet, error) {
 		if err != nil || (lab != 0 && lab != 1) {
 			return ls, fmt.Errorf("%s line %d: label %q must be 0 (normal) or 1 (anomaly)", path, line, rec[labelCol])
 		}
+		if first, dup := seen[rec[fileCol]]; dup {
+			return ls, fmt.Errorf("%s line %d: %s is listed again (first on line %d)", path, line, rec[fileCol], first)
+		}
+		seen[rec[fileCol]] = line
 		ls.files = append(ls.files, rec[fileCol])
 		ls.labels = append(ls.labels, lab)
 		for i, h := range head {
@@ -82,6 +88,21 @@ func readLabels(path string) (labelSet, error) {
 	return ls, nil
 }
 
+// bothClasses says why AUC cannot be computed on ls, or returns nil.
+func (ls labelSet) bothClasses(what string) error {
+	n1 := 0
+	for _, l := range ls.labels {
+		n1 += l
+	}
+	switch {
+	case n1 == 0:
+		return fmt.Errorf("%s: all %d recordings are normal (label 0); AUC needs anomalies too", what, len(ls.labels))
+	case n1 == len(ls.labels):
+		return fmt.Errorf("%s: all %d recordings are anomalies (label 1); AUC needs normal ones too", what, len(ls.labels))
+	}
+	return nil
+}
+
 // metrics is one scorer's figures.
 type metrics struct {
 	AUC  float64 `json:"auc"`
@@ -89,13 +110,13 @@ type metrics struct {
 }
 
 type groupReport struct {
-	Column    string  `json:"column"`
-	Value     string  `json:"value"`
-	N         int     `json:"n"`
-	Anomalies int     `json:"anomalies"`
-	Cosine    metrics `json:"cosine"`
-	Level     metrics `json:"level"`
-	Note      string  `json:"note,omitempty"`
+	Column    string   `json:"column"`
+	Value     string   `json:"value"`
+	N         int      `json:"n"`
+	Anomalies int      `json:"anomalies"`
+	Cosine    *metrics `json:"cosine"` // nil (JSON null) when Note says why there is none
+	Level     *metrics `json:"level"`
+	Note      string   `json:"note,omitempty"`
 }
 
 type evalReport struct {
@@ -134,7 +155,7 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 	jobs := fs.Int("jobs", runtime.NumCPU(), "files analysed in parallel")
 	where := fs.String("where", "", "evaluate only rows matching COLUMN OP VALUE, e.g. \"snr_db>=0\" (OP one of = != < <= > >=)")
 	by := fs.String("by", "", "report groups only for these comma-separated columns (default: every column)")
-	meanOver := fs.String("mean-over", "fault", "also report the mean AUC over the groups of this column")
+	meanOver := fs.String("mean-over", "", "also report the mean AUC over the groups of this column (default: fault, if present)")
 	dirs, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -154,6 +175,18 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 		if ls, err = ls.filter(*where); err != nil {
 			return err
 		}
+		if err := ls.bothClasses(fmt.Sprintf("--where %q", *where)); err != nil {
+			return err
+		}
+	} else if err := ls.bothClasses(*labPath); err != nil {
+		return err
+	}
+	if *meanOver != "" {
+		if _, ok := ls.groups[*meanOver]; !ok {
+			return usagef("--mean-over: the labels file has no column %q (it has %s)", *meanOver, strings.Join(ls.columns, ", "))
+		}
+	} else if _, ok := ls.groups["fault"]; ok {
+		*meanOver = "fault"
 	}
 	if *by != "" {
 		var keep []string
@@ -175,10 +208,10 @@ func runEvaluate(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	rep, err := buildReport(b, ls, results, *meanOver)
-	rep.Where = *where
 	if err != nil {
 		return err
 	}
+	rep.Where = *where
 	if *rocPath != "" {
 		if err := writeROC(*rocPath, b, ls, results, rep); err != nil {
 			return err
@@ -277,14 +310,29 @@ func buildReport(b *baseline.Baseline, ls labelSet, rs []fileResult, meanOver st
 		order[c] = i
 	}
 	for i, g := range gc {
-		gr := groupReport{Column: g.Name, Value: g.Value, N: g.N, Anomalies: g.Anomalies,
-			Cosine: metrics{g.AUC, g.PAUC}, Level: metrics{gl[i].AUC, gl[i].PAUC}, Note: g.Err}
+		gr := groupReport{Column: g.Name, Value: g.Value, N: g.N, Anomalies: g.Anomalies, Note: g.Err}
+		if g.Err == "" {
+			gr.Cosine, gr.Level = &metrics{g.AUC, g.PAUC}, &metrics{gl[i].AUC, gl[i].PAUC}
+		}
 		rep.Groups = append(rep.Groups, gr)
 	}
+	// Columns in file order; numeric values (SNR, set-point) in numeric order.
+	sort.SliceStable(rep.Groups, func(i, j int) bool {
+		a, b := rep.Groups[i], rep.Groups[j]
+		if a.Column != b.Column {
+			return order[a.Column] < order[b.Column]
+		}
+		x, errx := strconv.ParseFloat(a.Value, 64)
+		y, erry := strconv.ParseFloat(b.Value, 64)
+		if errx == nil && erry == nil {
+			return x < y
+		}
+		return a.Value < b.Value
+	})
 	var n int
 	var sc, sl float64
 	for _, g := range rep.Groups {
-		if g.Column == meanOver && g.Note == "" {
+		if g.Column == meanOver && g.Cosine != nil {
 			n++
 			sc += g.Cosine.AUC
 			sl += g.Level.AUC
@@ -309,14 +357,14 @@ func printReport(w io.Writer, r *evalReport) {
 	fmt.Fprintf(w, "pAUC is the McClish-standardised partial AUC up to a false-positive rate of %.1f\n\n", r.MaxFPR)
 	fmt.Fprintf(w, "%-28s %5s %5s   %-13s   %-13s\n", "", "", "", "  embedding", "level detector")
 	fmt.Fprintf(w, "%-28s %5s %5s   %6s %6s   %6s %6s\n", "group", "n", "anom", "AUC", "pAUC", "AUC", "pAUC")
-	row := func(name string, n, a int, c, l metrics, note string) {
-		if note != "" {
+	row := func(name string, n, a int, c, l *metrics, note string) {
+		if c == nil {
 			fmt.Fprintf(w, "%-28s %5d %5d   %s\n", name, n, a, note)
 			return
 		}
 		fmt.Fprintf(w, "%-28s %5d %5d   %6.3f %6.3f   %6.3f %6.3f\n", name, n, a, c.AUC, c.PAUC, l.AUC, l.PAUC)
 	}
-	row("all", r.Recordings, r.Anomalies, r.Cosine, r.Level, "")
+	row("all", r.Recordings, r.Anomalies, &r.Cosine, &r.Level, "")
 	last := ""
 	for _, g := range r.Groups {
 		if g.Column != last {
@@ -369,6 +417,12 @@ func (ls labelSet) filter(cond string) (labelSet, error) {
 		}
 	}
 	vals, ok := ls.groups[col]
+	if col == "label" {
+		vals, ok = make([]string, len(ls.labels)), true
+		for i, l := range ls.labels {
+			vals[i] = strconv.Itoa(l)
+		}
+	}
 	if op == "" || !ok {
 		return ls, usagef("--where %q: want COLUMN OP VALUE with a column of the labels file and OP one of = != < <= > >=", cond)
 	}
@@ -385,8 +439,10 @@ func (ls labelSet) filter(cond string) (labelSet, error) {
 			keep = v == val
 		case op == "!=":
 			keep = v != val
+		case numErr != nil:
+			return ls, usagef("--where %q: %q is not a number; only = and != compare text", cond, val)
 		default:
-			return ls, usagef("--where %q: row %d has %s %q, not a number", cond, i+1, col, v)
+			return ls, usagef("--where %q: recording %s has %s %q, not a number", cond, f, col, v)
 		}
 		if keep {
 			out.files = append(out.files, f)

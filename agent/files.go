@@ -52,6 +52,11 @@ func openAt(path string, rate, channel int) (audio.Source, func() error, error) 
 	if err != nil {
 		return nil, nil, err
 	}
+	if r.Rate() < rate {
+		r.Close()
+		return nil, nil, fmt.Errorf("%s: recorded at %d Hz, below the %d Hz analysis rate: it holds no sound above %d Hz, "+
+			"where the analysis looks; for such recordings enrol a baseline with --rate %d", path, r.Rate(), rate, r.Rate()/2, r.Rate())
+	}
 	src, err := audio.NewResampler(r, rate)
 	if err != nil {
 		r.Close()

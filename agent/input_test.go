@@ -67,6 +67,14 @@ func TestCommandLine(t *testing.T) {
 		{"enroll from a missing folder", []string{"enroll", "--out", filepath.Join(dir, "b.bl"), filepath.Join(dir, "nowhere")}, 1,
 			[]string{"nowhere", "no such file"}},
 		{"no command", nil, 2, nil},
+		{"enroll at an impossible rate", []string{"enroll", "--out", filepath.Join(dir, "b.bl"), "--rate", "5000", dir}, 2,
+			[]string{"--rate 5000", "8000 to 48000"}},
+		{"enroll with a zero floor", []string{"enroll", "--out", filepath.Join(dir, "b.bl"), "--floor", "0", dir}, 2,
+			[]string{"--floor 0"}},
+		{"warning below the alarm probability", []string{"enroll", "--out", filepath.Join(dir, "b.bl"), "--warn-prob", "0.001", dir}, 2,
+			[]string{"--warn-prob 0.001"}},
+		{"enroll into a missing folder", []string{"enroll", "--out", filepath.Join(dir, "no", "b.bl"), dir}, 1,
+			[]string{"cannot write into", "no such file"}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

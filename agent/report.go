@@ -109,6 +109,10 @@ func hz(f float64) string {
 func printVerdict(w io.Writer, b *baseline.Baseline, r fileResult, layout []embed.Dim) {
 	c := b.Calib
 	raised, over := raises(r, c.Threshold, c.K, c.N)
+	if c.WarnThreshold <= 0 { // a baseline from before the warning level
+		c.WarnThreshold = c.Threshold
+	}
+	warned, overWarn := raises(r, c.WarnThreshold, c.K, c.N)
 	var mx, lv float64
 	for _, x := range r.windows {
 		mx = max(mx, x.score)
@@ -119,16 +123,19 @@ func printVerdict(w io.Writer, b *baseline.Baseline, r fileResult, layout []embe
 	switch {
 	case raised:
 		verdict = "ALARM: sounds unlike its healthy baseline"
-	case over > 0:
-		verdict = "borderline: some windows over, too few to raise an alarm"
+	case warned:
+		verdict = "WARNING: sounds unusual; listen again or check soon"
+	case overWarn > 0:
+		verdict = "borderline: some windows unusual, too few for a warning"
 	}
 	fmt.Fprintf(w, "%s\n", r.path)
 	fmt.Fprintf(w, "  verdict     %s\n", verdict)
-	fmt.Fprintf(w, "  windows     %d of %d over the threshold %.4f (an alarm needs %d of the last %d)\n",
-		over, len(r.windows), c.Threshold, c.K, c.N)
+	fmt.Fprintf(w, "  windows     %d of %d over the alarm level %.4f, %d over the warning level %.4f\n"+
+		"              (either needs %d of the last %d windows)\n",
+		over, len(r.windows), c.Threshold, overWarn, c.WarnThreshold, c.K, c.N)
 	fmt.Fprintf(w, "  score       mean %.4f, highest %.4f\n", r.meanScore(), mx)
 	fmt.Fprintf(w, "  level       %.1f dBFS (baseline %.1f dBFS)\n", lv, b.Level.MeanDBFS)
-	if over > 0 {
+	if overWarn > 0 {
 		for i, d := range topDeviations(r, layout, 3) {
 			label := ""
 			if i == 0 {

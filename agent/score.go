@@ -59,6 +59,9 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 	if *report && *windows {
 		return usagef("--report and --windows exclude each other")
 	}
+	if *report && *scorer == scorerLevel {
+		return usagef("--report judges the embedding distance; it cannot be combined with --scorer level")
+	}
 	files, err := wavPaths(paths)
 	if err != nil {
 		return err
@@ -73,7 +76,7 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 	}
 	opts := analyseOptions{channel: *channel}
 	if *report {
-		opts.dev, opts.threshold = b.Model.NewScorer(), b.Calib.Threshold
+		opts.dev, opts.threshold = b.Model.NewScorer(), b.Calib.WarnThreshold
 	}
 	out := csv.NewWriter(stdout)
 	switch {
@@ -106,9 +109,13 @@ func runScore(args []string, stdout, stderr io.Writer) error {
 		case *windows:
 			for _, w := range r.windows {
 				s := windowScore(b, *scorer, w)
-				over := "0"
-				if *scorer == scorerCosine && s > b.Calib.Threshold {
-					over = "1"
+				over := "" // the level scorer has no calibrated levels
+				switch {
+				case *scorer != scorerCosine:
+				case s > b.Calib.Threshold:
+					over = "alarm"
+				case s > b.Calib.WarnThreshold && b.Calib.WarnThreshold > 0:
+					over = "warning"
 				}
 				out.Write([]string{f, strconv.FormatInt(w.index, 10), ff(w.startS, 3), ff(w.endS, 3),
 					ff(s, 6), ff(w.levelDBFS, 2), over})

@@ -23,8 +23,16 @@ type Calibration struct {
 	// FalseAlarmProb is the per-window false-alarm probability the threshold
 	// was set for.
 	FalseAlarmProb float64 `json:"false_alarm_prob_per_window"`
-	// Threshold is the distance at which a window counts as over.
+	// Threshold is the distance at which a window counts as over, for an
+	// alarm.
 	Threshold float64 `json:"threshold"`
+	// WarnProb and WarnThreshold are the same for the lower warning level:
+	// sound that is unusual but not yet alarming.
+	WarnProb      float64 `json:"warn_prob_per_window"`
+	WarnThreshold float64 `json:"warn_threshold"`
+	// HeldOutOverWarn is the measured share of held-out windows above
+	// WarnThreshold.
+	HeldOutOverWarn float64 `json:"held_out_over_warn"`
 	// K and N are the debounce the rate below assumes: raise when K of the
 	// last N windows are over.
 	K int `json:"debounce_k"`
@@ -50,6 +58,7 @@ type Calibration struct {
 // CalibrationOptions sets the calibration targets.
 type CalibrationOptions struct {
 	FalseAlarmProb float64 // per window, default 0.002
+	WarnProb       float64 // per window for the warning level, default 0.02
 	K, N           int     // debounce, default 3 of 5
 	StepSeconds    float64 // seconds between windows
 	Folds          int     // default 5
@@ -169,6 +178,13 @@ func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
 		FalseAlarmProb: co.FalseAlarmProb, K: co.K, N: co.N, StepSeconds: co.StepSeconds,
 		HeldOutWindows: len(held)}
 	c.Threshold = loc + d.Quantile(1-co.FalseAlarmProb)
+	if co.WarnProb > 0 {
+		if !(co.WarnProb > co.FalseAlarmProb && co.WarnProb < 0.5) {
+			return Calibration{}, fmt.Errorf("baseline: warning probability must be in (%g, 0.5), got %g", co.FalseAlarmProb, co.WarnProb)
+		}
+		c.WarnProb = co.WarnProb
+		c.WarnThreshold = loc + d.Quantile(1-co.WarnProb)
+	}
 	if !(c.Threshold < MaxThreshold) {
 		return Calibration{}, fmt.Errorf("%w: held-out healthy windows lie so far from the rest (threshold %.4f, limit %.2f) "+
 			"that no fault could stand out; the healthy recordings are too few or differ too much from each other: "+
@@ -181,6 +197,13 @@ func Calibrate(held []float64, co CalibrationOptions) (Calibration, error) {
 		}
 	}
 	c.HeldOutOver = float64(over) / float64(len(held))
+	over = 0
+	for _, v := range held {
+		if c.WarnThreshold > 0 && v > c.WarnThreshold {
+			over++
+		}
+	}
+	c.HeldOutOverWarn = float64(over) / float64(len(held))
 	sorted := slices.Clone(held)
 	sort.Float64s(sorted)
 	c.HeldOutMedian = quantile(sorted, 0.5)
