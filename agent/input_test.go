@@ -81,6 +81,12 @@ func TestCommandLine(t *testing.T) {
 			wantFail(t, cli(t, tc.args...), tc.code, tc.want...)
 		})
 	}
+	t.Run("simulate refuses to mix runs", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "sim")
+		os.MkdirAll(filepath.Join(out, "train"), 0o755)
+		writeWAV(t, filepath.Join(out, "train"), "old.wav", 16000, noise(16000, 1, 1))
+		wantFail(t, cli(t, "simulate", "--out", out), 1, "already holds 1 recordings", "empty folder")
+	})
 	t.Run("help", func(t *testing.T) {
 		r := mustRun(t, "help")
 		for _, c := range []string{"simulate", "enroll", "score", "evaluate"} {

@@ -31,6 +31,12 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	if *train < 2 || *normal < 1 || *perFault < 1 || *seconds < 1 || *rate < 8000 || *rate > 48000 {
 		return usagef("need --train >= 2, --test-normal >= 1, --per-fault >= 1, --seconds >= 1, --rate 8000..48000")
 	}
+	for _, d := range []string{"train", "test"} {
+		if old, _ := filepath.Glob(filepath.Join(*out, d, "*.wav")); len(old) > 0 {
+			return fmt.Errorf("%s already holds %d recordings; simulate into an empty folder so runs never mix",
+				filepath.Join(*out, d), len(old))
+		}
+	}
 	opt := sim.DefaultOptions(*seed)
 	opt.TrainClips, opt.TestNormal, opt.TestPerFaultSeverity = *train, *normal, *perFault
 	opt.ClipSeconds, opt.Rate = *seconds, *rate

@@ -63,8 +63,8 @@ var (
 	// than a RIFF file's 32-bit size fields can describe.
 	ErrTooLong = errors.New("audio: wav file would exceed 4 GiB")
 
-	// ErrResampleRatio is returned when the reduced ratio of two sample
-	// rates is so fine that the polyphase filter table would exceed
-	// MaxResampleTaps coefficients.
-	ErrResampleRatio = errors.New("audio: resampling ratio too fine")
+	// ErrResampleRatio is returned when the downsampling factor in/out is
+	// so large that the anti-aliasing filter table would exceed
+	// MaxResampleTaps coefficients (for example 384000 Hz to 1000 Hz).
+	ErrResampleRatio = errors.New("audio: resampling factor too large")
 )

@@ -323,7 +323,7 @@ func TestResampleErrors(t *testing.T) {
 		{"zero input rate", 0, 16000, ErrSampleRate, 0},
 		{"zero output rate", 16000, 0, ErrSampleRate, 0},
 		{"output rate too high", 16000, MaxSampleRate + 1, ErrSampleRate, MaxSampleRate + 1},
-		{"ratio too fine", 44100, 16001, ErrResampleRatio, 16001},
+		{"factor too large", 383999, 1000, ErrResampleRatio, 383999},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

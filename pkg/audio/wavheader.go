@@ -122,11 +122,11 @@ func parseWAVHeader(r io.Reader, name string) (wavHeader, error) {
 			return h, nil
 		}
 		if id != "fmt " {
-			if err := skipBytes(r, size+size&1, name, body, id); err != nil {
+			if err := skipBytes(r, size+size&1, size, name, body, id); err != nil {
 				return h, err
 			}
 		} else if size&1 == 1 {
-			if err := skipBytes(r, 1, name, body+size, id); err != nil {
+			if err := skipBytes(r, 1, size, name, body+size, id); err != nil {
 				return h, err
 			}
 		}
@@ -146,14 +146,16 @@ func readHeaderBytes(r io.Reader, p []byte, name string, off int64, what string)
 	return wrapIO(name, off+int64(n), err)
 }
 
-// skipBytes discards n bytes of chunk id from r without buffering them.
-func skipBytes(r io.Reader, n int64, name string, off int64, id string) error {
+// skipBytes discards n bytes of chunk id, whose size field says declared
+// bytes, from r without buffering them. The error message reports the
+// declared size, not n (the rest of the body, or a pad byte).
+func skipBytes(r io.Reader, n, declared int64, name string, off int64, id string) error {
 	got, err := io.CopyN(io.Discard, r, n)
 	if err == nil {
 		return nil
 	}
 	if errors.Is(err, io.EOF) {
-		return failf(name, off+got, ErrTruncatedHeader, "chunk %q declares %d bytes but the file ends before the data chunk", id, n)
+		return failf(name, off+got, ErrTruncatedHeader, "chunk %q declares %d bytes but the file ends before the data chunk", id, declared)
 	}
 	return wrapIO(name, off+got, err)
 }
@@ -179,7 +181,7 @@ func readFmtChunk(r io.Reader, size int64, name string, off int64) (WAVInfo, int
 		return WAVInfo{}, 0, err
 	}
 	if size > n {
-		if err := skipBytes(r, size-n, name, off+n, "fmt "); err != nil {
+		if err := skipBytes(r, size-n, size, name, off+n, "fmt "); err != nil {
 			return WAVInfo{}, 0, err
 		}
 	}

@@ -167,6 +167,10 @@ func TestWAVErrors(t *testing.T) {
 		{"channel too high", good, 1, ErrChannel, "channel 1"},
 		{"channel negative", good, -2, ErrChannel, "channel -2"},
 		{"LIST larger than file", riff(fmt16, chunkSized("LIST", 1000, []byte("ab"))), 0, ErrTruncatedHeader, "LIST"},
+		// The message reports the size field, not the bytes left to skip
+		// (fmt: size minus the 40 bytes read; odd LIST: size plus pad).
+		{"fmt larger than file", riff(chunkSized("fmt ", 0xFFFFFFF0, fmtExt(tagPCM, 1, 8000, 16, 16))), 0, ErrTruncatedHeader, `chunk "fmt " declares 4294967280 bytes`},
+		{"odd LIST larger than file", riff(fmt16, chunkSized("LIST", 7, []byte("ab"))), 0, ErrTruncatedHeader, `chunk "LIST" declares 7 bytes`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

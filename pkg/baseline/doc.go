@@ -6,10 +6,13 @@
 //
 // Enrolment standardises every dimension with the healthy mean and standard
 // deviation, then whitens with the principal components of the healthy
-// windows. Eigenvalues below a floor (Floor times the mean eigenvalue) are
-// raised to it, so directions that healthy sound never used are weighted
-// strongly but not infinitely: gain drift, background noise and speed
-// set-points fill the major components, faults show in the minor ones.
+// windows. Eigenvalues below a floor are raised to it: the floor is the
+// upper edge of the Marchenko-Pastur law, (1 + sqrt(D/Neff))^2 times the
+// median eigenvalue, for D dimensions and Neff independent windows (times
+// ModelOptions.Floor, default 1). Eigenvalues below that edge cannot be told
+// from sampling noise. The components above it, where gain drift,
+// background and speed set-points live, are whitened and so discounted;
+// every other direction, where a fault shows, keeps the floor's weight.
 //
 // The embedding of a window is e = (a, c_1/sqrt(l_1), ..., c_K/sqrt(l_K),
 // r/sqrt(floor)) where c_i are the coordinates on the K kept components, r

@@ -18,8 +18,8 @@ type Recording struct {
 // QualityLimits are the enrolment checks' thresholds. They are common
 // practice for acoustic monitoring set-ups, not values from a standard.
 type QualityLimits struct {
-	MinSeconds  float64 // total healthy audio, default 60 s
-	MinWindows  int     // total analysis windows, default 20
+	MinSeconds  float64 // total healthy audio, default 300 s
+	MinWindows  int     // total analysis windows, default 120
 	SilentDBFS  float64 // a recording quieter than this is silent, default -70 dBFS
 	MaxClip     float64 // largest share of clipped samples, default 0.001 (0.1 %)
 	MaxSpreadDB float64 // largest spread of window levels in one recording, default 20 dB
