@@ -62,6 +62,7 @@ echo "$report"
 verdict="$(sed -n 's/^  verdict *//p' <<<"$report")"
 case "$verdict" in
 ALARM*) echo "The faulty recording raised an alarm." ;;
+WARNING*) echo "The faulty recording raised a warning: unusual, but below the alarm level." ;;
 *) echo "Note: the faulty recording did NOT raise an alarm; its verdict is \"$verdict\"." ;;
 esac
 
