@@ -57,9 +57,19 @@ func BenchmarkResample44100to16000(b *testing.B) { benchResample(b, 44100, 16000
 func BenchmarkResample48000to16000(b *testing.B) { benchResample(b, 48000, 16000) }
 
 // BenchmarkResampleRead44100to16000 times Reads only, on one resampler fed
-// from an endless source; it must report 0 allocs/op.
-func BenchmarkResampleRead44100to16000(b *testing.B) {
-	r, err := NewResampler(&loopSource{rate: 44100, s: testSignal(44100, 2)}, 16000)
+// from an endless source; it must report 0 allocs/op. 44100 Hz to
+// 16000 Hz takes the exact rational path (160/441).
+func BenchmarkResampleRead44100to16000(b *testing.B) { benchResampleRead(b, 44100, 16000) }
+
+// BenchmarkResampleRead11127to16000 is the same for a rate pair on the
+// interpolating path (reduced ratio 16000/11127).
+func BenchmarkResampleRead11127to16000(b *testing.B) { benchResampleRead(b, 11127, 16000) }
+
+// BenchmarkResampleRead47999to16000 is the interpolating path downsampling.
+func BenchmarkResampleRead47999to16000(b *testing.B) { benchResampleRead(b, 47999, 16000) }
+
+func benchResampleRead(b *testing.B, in, out int) {
+	r, err := NewResampler(&loopSource{rate: in, s: testSignal(in, 2)}, out)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -71,7 +81,7 @@ func BenchmarkResampleRead44100to16000(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
-	b.ReportMetric(float64(len(buf))*44100/16000*float64(b.N)/b.Elapsed().Seconds(), "in-samples/s")
+	b.ReportMetric(float64(len(buf))*float64(in)/float64(out)*float64(b.N)/b.Elapsed().Seconds(), "in-samples/s")
 }
 
 func benchResample(b *testing.B, in, out int) {
