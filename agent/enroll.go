@@ -196,8 +196,8 @@ func printEnrolment(w io.Writer, b *baseline.Baseline, path string) {
 	if b.Asset != "" {
 		fmt.Fprintf(w, "  asset       %s\n", b.Asset)
 	}
-	fmt.Fprintf(w, "  enrolled    %d recordings, %s of healthy sound, %d windows\n", e.Recordings,
-		(time.Duration(e.Seconds) * time.Second).String(), e.Windows)
+	fmt.Fprintf(w, "  enrolled    %d recordings, %.1f min of healthy sound, %d windows\n", e.Recordings,
+		e.Seconds/60, e.Windows)
 	fmt.Fprintf(w, "  model       %d dimensions, %d whitened components (eigenvalue floor x%.3g)\n", e.Dim, e.Components, b.Options.Floor)
 	fmt.Fprintf(w, "  held out    %d windows in %d folds: median distance %.3f, 99th percentile %.3f\n",
 		c.HeldOutWindows, c.Folds, c.HeldOutMedian, c.HeldOutP99)

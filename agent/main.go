@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 )
 
 // version is set at build time with -ldflags "-X main.version=...".
@@ -34,7 +35,8 @@ func usage(w io.Writer) {
 	fmt.Fprintln(w, "auscult: acoustic condition monitoring for pumps and other rotating machines")
 	fmt.Fprintln(w, "\nusage: auscult COMMAND [options]\n\ncommands:")
 	for _, c := range commands() {
-		fmt.Fprintf(w, "  %-9s %s\n            %s\n", c.name, c.args, c.summary)
+		fmt.Fprintln(w, strings.TrimRight(fmt.Sprintf("  %-9s %s", c.name, c.args), " "))
+		fmt.Fprintf(w, "            %s\n", c.summary)
 	}
 	fmt.Fprintln(w, "\n`auscult COMMAND -h` lists a command's options.")
 }
