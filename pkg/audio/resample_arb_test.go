@@ -270,36 +270,6 @@ func hannAmplitude(y []int16, rate int, f float64) float64 {
 	return 2 * math.Hypot(re, im) / wsum
 }
 
-// TestResampleArbLength checks the output length ceil(n*out/in) (values
-// worked by hand, e.g. 11128*16000/11127 = 16001.44 rounds up to 16002).
-func TestResampleArbLength(t *testing.T) {
-	cases := []struct{ in, out, n, want int }{
-		{11127, 16000, 0, 0},
-		{11127, 16000, 1, 2},
-		{11127, 16000, 7, 11},
-		{11127, 16000, 11127, 16000},
-		{11127, 16000, 11128, 16002},
-		{47999, 16000, 1, 1},
-		{47999, 16000, 3, 2},
-		{47999, 16000, 47999, 16000},
-		{47999, 16000, 48002, 16002},
-		{8001, 16000, 1, 2},
-		{8001, 16000, 8001, 16000},
-		{8001, 16000, 8002, 16002},
-	}
-	for _, c := range cases {
-		t.Run(fmt.Sprintf("%dto%d_n%d", c.in, c.out, c.n), func(t *testing.T) {
-			r, err := NewResampler(NewSliceSource(c.in, make([]int16, c.n)), c.out)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if got := len(readAll(t, r, 7)); got != c.want {
-				t.Errorf("%d samples, want %d", got, c.want)
-			}
-		})
-	}
-}
-
 // TestResampleAllRatesSupported checks that every input rate 8000..192000 Hz
 // has a buildable design for the usual output rates, and builds and runs a
 // spread of them.
