@@ -135,6 +135,11 @@ func printVerdict(w io.Writer, b *baseline.Baseline, r fileResult, layout []embe
 		over, len(r.windows), c.Threshold, overWarn, c.WarnThreshold, c.K, c.N)
 	fmt.Fprintf(w, "  score       mean %.4f, highest %.4f\n", r.meanScore(), mx)
 	fmt.Fprintf(w, "  level       %.1f dBFS (baseline %.1f dBFS)\n", lv, b.Level.MeanDBFS)
+	full := float64(b.Embed.Window*b.Embed.SubHops*b.Features.Hop) / float64(b.Features.Rate)
+	if n := len(r.windows); n == 1 && r.windows[0].endS-r.windows[0].startS < full-1e-9 {
+		fmt.Fprintf(w, "  note        short recording: one window of %.1f s, shorter than the %.1f s the levels are set for;\n"+
+			"              judge it with care\n", r.windows[0].endS-r.windows[0].startS, full)
+	}
 	if overWarn > 0 {
 		for i, d := range topDeviations(r, layout, 3) {
 			label := ""
