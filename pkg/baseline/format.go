@@ -80,9 +80,10 @@ func (b *Baseline) Marshal() ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
+// contentID hashes the header (with an empty ID and the time in UTC) and
+// the model bytes.
 func contentID(b *Baseline, body []byte) string {
-	created := b.Created
-	b.Created = created.UTC()
+	b.Created = b.Created.UTC()
 	hdr, _ := json.Marshal(b)
 	h := sha256.New()
 	h.Write(hdr)
