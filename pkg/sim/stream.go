@@ -31,6 +31,7 @@ type Stream struct {
 	current Clip
 	pending []int16
 	tail    []float64
+	stopped bool // the machine is off: only the background sounds
 }
 
 // NewStream starts an endless stream of machine m at rate Hz under the
@@ -53,6 +54,11 @@ func (s *Stream) SetCondition(setpointHz float64, fault, severity string) {
 		s.tmpl.Label = 1
 	}
 }
+
+// SetStopped stops (true) or restarts (false) the machine from the next chunk
+// on. A stopped machine is silent; the background plays on at the level it has
+// while the machine runs, as in a hall where only this pump was switched off.
+func (s *Stream) SetStopped(stopped bool) { s.stopped = stopped }
 
 // Current returns the description of the chunk most recently started (zero
 // before the first Read), for ground truth in live tests.
@@ -81,6 +87,9 @@ func (s *Stream) render() {
 	c.Split = "stream"
 	length := s.chunk + s.fade
 	p, sc := renderChunk(s.m, c, s.rate, float64(length)/float64(s.rate), s.cont)
+	if s.stopped {
+		clear(p.machine)
+	}
 	next := sc.next(s.chunk)
 	s.cont = &next
 	noise := newRand(c.Seed, streamGain+0x100)
