@@ -3,8 +3,6 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
-	"sort"
 
 	"github.com/auscult/auscult/pkg/baseline"
 	"github.com/auscult/auscult/pkg/embed"
@@ -30,64 +28,26 @@ func raises(r fileResult, thr float64, k, n int) (raised bool, over int) {
 	return raised, over
 }
 
-// deviation is a band range whose standardised deviation stands out.
-type deviation struct {
-	dim embed.Dim // Part, and LoHz..HiHz over the whole merged range
-	sd  float64   // the largest mean deviation in the range, signed
+// topDeviations returns up to n frequency ranges that deviate most, over the
+// mean of the file's window deviations.
+func topDeviations(r fileResult, layout []embed.Dim, n int) []baseline.Band {
+	mean := make([]float32, len(r.devSum))
+	for i, v := range r.devSum {
+		mean[i] = float32(v / float64(max(r.devCount, 1)))
+	}
+	return baseline.NewBandFinder(layout).Find(mean, make([]baseline.Band, 0, n))
 }
 
-// topDeviations returns up to n frequency ranges that deviate most: the
-// strongest dimensions, with neighbouring bands of the same part that
-// deviate the same way merged into one range.
-func topDeviations(r fileResult, layout []embed.Dim, n int) []deviation {
-	idx := make([]int, len(r.devSum))
-	for i := range idx {
-		idx[i] = i
-	}
-	mean := func(i int) float64 { return r.devSum[i] / float64(max(r.devCount, 1)) }
-	sort.Slice(idx, func(a, b int) bool { return math.Abs(mean(idx[a])) > math.Abs(mean(idx[b])) })
-	strong := map[int]bool{}
-	for _, i := range idx[:min(4*n, len(idx))] {
-		strong[i] = true
-	}
-	used := map[int]bool{}
-	var out []deviation
-	for _, i := range idx {
-		if len(out) == n || !strong[i] {
-			break
-		}
-		if used[i] {
-			continue
-		}
-		d := deviation{dim: layout[i], sd: mean(i)}
-		used[i] = true
-		same := func(j int) bool {
-			return j >= 0 && j < len(layout) && strong[j] && !used[j] && layout[j].Part == d.dim.Part &&
-				(mean(j) > 0) == (d.sd > 0)
-		}
-		for j := i - 1; same(j); j-- {
-			used[j] = true
-			d.dim.LoHz = layout[j].LoHz
-		}
-		for j := i + 1; same(j); j++ {
-			used[j] = true
-			d.dim.HiHz = layout[j].HiHz
-		}
-		out = append(out, d)
-	}
-	return out
-}
-
-func describeDim(d deviation) string {
-	band := fmt.Sprintf("%s to %s", hz(d.dim.LoHz), hz(d.dim.HiHz))
+func describeDim(d baseline.Band) string {
+	band := fmt.Sprintf("%s to %s", hz(d.LoHz), hz(d.HiHz))
 	more, what := "louder", "steady sound"
-	if d.sd < 0 {
+	if d.Deviation < 0 {
 		more = "quieter"
 	}
-	switch d.dim.Part {
+	switch d.Part {
 	case "mel_std":
 		what, more = "fluctuation", "more"
-		if d.sd < 0 {
+		if d.Deviation < 0 {
 			more = "less"
 		}
 	case "fine":
@@ -146,7 +106,7 @@ func printVerdict(w io.Writer, b *baseline.Baseline, r fileResult, layout []embe
 			if i == 0 {
 				label = "deviates"
 			}
-			fmt.Fprintf(w, "  %-11s %+6.1f sd  %s\n", label, d.sd, describeDim(d))
+			fmt.Fprintf(w, "  %-11s %+6.1f sd  %s\n", label, d.Deviation, describeDim(d))
 		}
 	}
 }
