@@ -50,16 +50,7 @@ func CreateWAV(path string, rate int) (*WAVWriter, error) {
 		scratch: make([]byte, 8192),
 	}
 	var h [wavHeaderBytes]byte
-	copy(h[0:], "RIFF")
-	copy(h[8:], "WAVEfmt ")
-	binary.LittleEndian.PutUint32(h[16:], 16)
-	binary.LittleEndian.PutUint16(h[20:], tagPCM)
-	binary.LittleEndian.PutUint16(h[22:], 1)
-	binary.LittleEndian.PutUint32(h[24:], uint32(rate))
-	binary.LittleEndian.PutUint32(h[28:], uint32(rate*2))
-	binary.LittleEndian.PutUint16(h[32:], 2)
-	binary.LittleEndian.PutUint16(h[34:], 16)
-	copy(h[36:], "data")
+	putWAVHeader(h[:], rate, 0)
 	if _, err := w.bw.Write(h[:]); err != nil {
 		w.Abort()
 		return nil, fmt.Errorf("audio: writing %s: %w", path, err)
