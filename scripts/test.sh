@@ -4,8 +4,9 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
-# Debian packages the tests use: sox writes reference WAV files.
-packages=(sox)
+# Debian packages the tests use: sox writes reference WAV files; portaudio19-dev
+# (with libasound2-dev) builds live capture, tested through ALSA's file plugin.
+packages=(sox portaudio19-dev)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
@@ -30,6 +31,6 @@ go test -run '^$' -bench . -benchtime 1x ./... >/dev/null
 echo "== fuzz the WAV parser briefly"
 go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio >/dev/null
 echo "== race detector on the concurrent parts"
-go test -count=1 -race ./agent ./pkg/pipeline >/dev/null
+go test -count=1 -race ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor >/dev/null
 echo "== tests"
 go test -count=1 ./...
