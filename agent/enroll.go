@@ -7,17 +7,14 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"time"
 
 	"github.com/auscult/auscult/pkg/audio"
 	"github.com/auscult/auscult/pkg/baseline"
 	"github.com/auscult/auscult/pkg/embed"
+	"github.com/auscult/auscult/pkg/enrol"
 	"github.com/auscult/auscult/pkg/features"
-	"github.com/auscult/auscult/pkg/pipeline"
 )
 
-// blockSeconds splits long healthy recordings into calibration groups.
-const blockSeconds = 60
 
 // enrollOptions are the settings shared by enroll and the ablation tooling.
 type enrollOptions struct {
@@ -136,58 +133,31 @@ func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseli
 	if err != nil {
 		return nil, err
 	}
-	// Enrolment takes a window at every sub-window for more healthy
-	// examples; scoring uses the configured step.
-	dense := ec
-	dense.Step = 1
-	p, err := pipeline.New(fc, dense)
+	eo := enrol.DefaultOptions()
+	eo.Features, eo.Embed, eo.Asset = fc, ec, o.asset
+	eo.Model.Floor = o.floor
+	eo.Calibration.FalseAlarmProb, eo.Calibration.WarnProb = o.faProb, o.warnProb
+	eo.Calibration.K, eo.Calibration.N = o.k, o.n
+	e, err := enrol.New(eo)
 	if err != nil {
 		return nil, err
 	}
-	var vecs [][]float32
-	var groups []int
-	var levels []float64
-	var recs []baseline.Recording
 	prog := newProgress(stderr, "enrolling", len(files))
-	for i, f := range files {
-		r, err := analyseFile(p, f, analyseOptions{channel: o.channel, keepVecs: true})
+	defer prog.end()
+	for _, f := range files {
+		src, closeFn, err := openAt(f, fc.Rate, o.channel)
 		if err != nil {
-			prog.end()
 			return nil, err
 		}
-		rec := baseline.Recording{Name: f, Seconds: r.seconds}
-		var clip float64
-		for j, w := range r.windows {
-			rec.LevelsDBFS = append(rec.LevelsDBFS, w.levelDBFS)
-			clip += w.clipFraction
-			levels = append(levels, w.levelDBFS)
-			groups = append(groups, i*100000+int(w.startS/blockSeconds))
-			vecs = append(vecs, r.vecs[j])
+		before := e.Seconds()
+		err = e.Add(f, src, nil)
+		closeFn()
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", f, err)
 		}
-		rec.ClipFraction = clip / float64(len(r.windows))
-		recs = append(recs, rec)
-		prog.step(r.seconds)
+		prog.step(e.Seconds() - before)
 	}
-	prog.end()
-	if err := baseline.CheckQuality(recs, baseline.DefaultQualityLimits()); err != nil {
-		return nil, fmt.Errorf("enrolment refused:\n%w", err)
-	}
-	mo := baseline.DefaultModelOptions()
-	mo.Floor = o.floor
-	mo.Redundancy = float64(ec.Window) / float64(dense.Step)
-	step := float64(ec.Step*ec.SubHops*fc.Hop) / float64(fc.Rate)
-	co := baseline.CalibrationOptions{FalseAlarmProb: o.faProb, WarnProb: o.warnProb, K: o.k, N: o.n, StepSeconds: step, Folds: 5}
-	model, cal, err := baseline.Enroll(vecs, groups, mo, co)
-	if err != nil {
-		return nil, fmt.Errorf("enrolment refused:\n%w", err)
-	}
-	var seconds float64
-	for _, r := range recs {
-		seconds += r.Seconds
-	}
-	return &baseline.Baseline{Created: time.Now().UTC(), Asset: o.asset, Features: fc, Embed: ec,
-		Options: mo, Calib: cal, Level: baseline.Levels(levels), Model: model,
-		Enrolled: baseline.Enrolment{Recordings: len(files), Windows: len(vecs), Seconds: seconds}}, nil
+	return e.Finish()
 }
 
 func printEnrolment(w io.Writer, b *baseline.Baseline, path string) {

@@ -1,6 +1,7 @@
 package baseline
 
 import (
+	"encoding/json"
 	"fmt"
 	"time"
 
@@ -25,7 +26,11 @@ type Baseline struct {
 	Calib    Calibration     `json:"calibration"`
 	Level    LevelStats      `json:"level"`
 	Enrolled Enrolment       `json:"enrolment"`
-	Model    *Model          `json:"-"`
+	// Lines is the machine's tonal signature for the running/stopped gate
+	// (pkg/gate.Lines as JSON; decode with pkg/enrol.Lines). Empty when the
+	// machine showed no usable lines or the baseline predates them.
+	Lines json.RawMessage `json:"machine_lines,omitempty"`
+	Model *Model          `json:"-"`
 }
 
 // Enrolment records what the baseline was learnt from.

@@ -1,0 +1,15 @@
+package monitor
+
+import "github.com/auscult/auscult/pkg/store"
+
+// Sink receives what the monitor produces. *store.Store implements it.
+// AppendEvent must make the event durable before it returns; trend points and
+// summaries may be buffered.
+type Sink interface {
+	AppendEvent(e store.Event) (seq uint64, err error)
+	AddTrend(p store.TrendPoint) error
+	AddSummary(s store.Summary) error
+	PutClip(c store.Clip) (id uint64, err error)
+}
+
+var _ Sink = (*store.Store)(nil)
