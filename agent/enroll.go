@@ -15,7 +15,6 @@ import (
 	"github.com/auscult/auscult/pkg/features"
 )
 
-
 // enrollOptions are the settings shared by enroll and the ablation tooling.
 type enrollOptions struct {
 	asset    string

@@ -117,8 +117,8 @@ func TestHealthyFaultStopped(t *testing.T) {
 		t.Fatal(err)
 	}
 	var plan []act
-	plan = append(plan, repeat(act{}, 18)...)                          // 0-3 min healthy
-	faultAt := len(plan) * 10                                          // seconds
+	plan = append(plan, repeat(act{}, 18)...)                            // 0-3 min healthy
+	faultAt := len(plan) * 10                                            // seconds
 	plan = append(plan, repeat(act{fault: sim.FaultBearingOuter}, 6)...) // 3-4 min fault
 	faultEnd := len(plan) * 10
 	plan = append(plan, repeat(act{}, 12)...) // 4-6 min healthy again
