@@ -1,6 +1,7 @@
 // Command auscult listens to a machine and tells when it sounds wrong.
 //
-// Offline commands work on WAV recordings; see `auscult help`.
+// Offline commands work on WAV recordings; run and check listen live; see
+// `auscult help`.
 package main
 
 import (
@@ -24,6 +25,9 @@ func commands() []command {
 		{"enroll", "--out BASELINE PATH...", "learn the healthy baseline from WAV files or folders", runEnroll},
 		{"score", "--baseline BASELINE PATH...", "score WAV files against a baseline (CSV on stdout)", runScore},
 		{"evaluate", "--baseline BASELINE --labels CSV DIR", "AUC and pAUC of labelled recordings, overall and per group", runEvaluate},
+		{"run", "--config FILE [--source SPEC]", "listen continuously: alarms, trend and evidence into the local log", runRun},
+		{"check", "--config FILE [--source SPEC]", "validate the config, the baseline, the log folder and the microphone level", runCheck},
+		{"devices", "", "list the sound input devices live capture can open", runDevices},
 		{"version", "", "print the version", func(_ []string, out, _ io.Writer) error {
 			fmt.Fprintln(out, "auscult", version)
 			return nil

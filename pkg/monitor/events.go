@@ -120,7 +120,7 @@ func (m *Monitor) append(e store.Event) uint64 {
 	e.Time = e.Time.UTC()
 	seq, err := m.sink.AppendEvent(e)
 	m.fail(err)
-	m.cfg.Logger.Info(e.Message, "event", e.Code, "seq", seq, "asset", e.Asset, "score", e.Score)
+	m.cfg.Logger.Info(e.Message, "event", e.Code, "seq", seq, "score", e.Score)
 	if e.Kind == store.EventAlarm && strings.HasSuffix(e.Code, ".raised") {
 		m.summary.alarms++
 	}

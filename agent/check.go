@@ -1,0 +1,141 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"time"
+
+	"github.com/auscult/auscult/pkg/baseline"
+	"github.com/auscult/auscult/pkg/config"
+	"github.com/auscult/auscult/pkg/gate"
+)
+
+// checkSeconds is how much sound check listens to.
+const checkSeconds = 5
+
+func runCheck(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("check", stderr)
+	cfgPath := fs.String("config", "", "the agent's configuration file (required)")
+	srcSpec := fs.String("source", "", "override the configured source: device[:NAME], wav:PATH or stdin")
+	if rest, err := parse(fs, args); err != nil {
+		return err
+	} else if len(rest) > 0 {
+		return usagef("unexpected argument %q", rest[0])
+	}
+	if *cfgPath == "" {
+		return usagef("--config FILE is required")
+	}
+	cfg, err := loadRunConfig(*cfgPath, *srcSpec, 0)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "config      %s: valid (asset %s)\n", *cfgPath, cfg.Asset)
+	var failed []string
+	b, err := baseline.Load(cfg.Baseline)
+	if err != nil {
+		fmt.Fprintf(stdout, "baseline    FAIL %v\n", err)
+		failed = append(failed, "baseline")
+	} else {
+		fmt.Fprintf(stdout, "baseline    %s, enrolled %s, %.0f min of healthy sound, alarm at %.4f\n",
+			b.ID, b.Created.Format("2006-01-02"), b.Enrolled.Seconds/60, b.Calib.Threshold)
+	}
+	if err := logWritable(cfg.Log.Path); err != nil {
+		fmt.Fprintf(stdout, "log         FAIL %v\n", err)
+		failed = append(failed, "log")
+	} else {
+		fmt.Fprintf(stdout, "log         %s: writable\n", cfg.Log.Path)
+	}
+	rate := 16000
+	if b != nil {
+		rate = b.Features.Rate
+	}
+	if line, err := checkSound(rate, cfg.Source, b); err != nil {
+		fmt.Fprintf(stdout, "microphone  FAIL %v\n", err)
+		failed = append(failed, "microphone")
+	} else {
+		fmt.Fprintf(stdout, "microphone  %s\n", line)
+	}
+	fmt.Fprintln(stdout, "broker      none configured")
+	if len(failed) > 0 {
+		return fmt.Errorf("%d check(s) failed: %v", len(failed), failed)
+	}
+	fmt.Fprintln(stdout, "all checks passed")
+	return nil
+}
+
+// logWritable checks the log's folder takes files, without touching a
+// log a running agent may hold.
+func logWritable(path string) error {
+	f, err := os.CreateTemp(filepath.Dir(path), ".auscult-check-*")
+	if err != nil {
+		return err
+	}
+	name := f.Name()
+	f.Close()
+	return os.Remove(name)
+}
+
+// checkSound listens for a few seconds and judges the level and the
+// sensor's health.
+func checkSound(rate int, s config.Source, b *baseline.Baseline) (string, error) {
+	s.Speed = 0
+	src, err := openSource(s, rate, os.Stdin)
+	if err != nil {
+		return "", err
+	}
+	defer src.closeFn(context.Background())
+	sensor, err := gate.NewSensor(gate.DefaultSensorConfig())
+	if err != nil {
+		return "", err
+	}
+	buf := make([]int16, rate/10)
+	var n int
+	var sum float64
+	var peak int
+	deadline := time.Now().Add(checkSeconds*time.Second + 5*time.Second)
+	for n < checkSeconds*rate && time.Now().Before(deadline) {
+		k, err := src.Read(buf)
+		for _, v := range buf[:k] {
+			sum += float64(v) * float64(v)
+			peak = max(peak, abs16(v))
+		}
+		sensor.Observe(buf[:k])
+		n += k
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return "", err
+		}
+	}
+	if n == 0 {
+		return "", fmt.Errorf("%s delivered no sound", src.desc)
+	}
+	sensor.Close(int64(n), nil)
+	r := sensor.Last()
+	// RMS re a full-scale sine (AES17): a full-scale sine has RMS 32767/sqrt(2).
+	level := 10*math.Log10(sum/float64(n)+1e-12) - 10*math.Log10(32767.0*32767.0/2)
+	line := fmt.Sprintf("%s: %.1f s, level %.1f dBFS, peak %.1f dBFS, clipped %.3f %%", src.desc,
+		float64(n)/float64(rate), level, 20*math.Log10(float64(max(peak, 1))/32768), 100*r.ClipFraction)
+	if b != nil {
+		line += fmt.Sprintf(" (healthy at enrolment: %.1f dBFS)", b.Level.MeanDBFS)
+	}
+	for k := gate.Kind(0); k < gate.NumKinds; k++ {
+		if r.Faulty[k] {
+			return line, fmt.Errorf("%s; sensor problem: %s", line, k)
+		}
+	}
+	return line, nil
+}
+
+func abs16(v int16) int {
+	if v < 0 {
+		return -int(v)
+	}
+	return int(v)
+}

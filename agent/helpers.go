@@ -1,0 +1,118 @@
+package main
+
+import (
+	"context"
+	"log/slog"
+	"os"
+	"strings"
+	"sync"
+	"sync/atomic"
+	"time"
+
+	"github.com/coreos/go-systemd/v22/daemon"
+
+	"github.com/auscult/auscult/pkg/capture"
+	"github.com/auscult/auscult/pkg/config"
+	"github.com/auscult/auscult/pkg/monitor"
+)
+
+// stallLimit is how long the processing loop may go without a window before
+// the watchdog stops vouching for it (a window comes about every 2 s).
+const stallLimit = 30 * time.Second
+
+// startHelpers starts the goroutines that serve a running agent: capture
+// diagnostics into the log, the systemd watchdog, and SIGHUP handling. They
+// stop when done is closed; wait for them with the returned group.
+func startHelpers(ctx context.Context, done <-chan struct{}, mon *monitor.Monitor, src *liveSource,
+	hup <-chan os.Signal, cfg config.Config, cfgPath string, log *slog.Logger) *sync.WaitGroup {
+	var wg sync.WaitGroup
+	var deviceTrouble atomic.Int64 // unix nanos of the last capture failure
+	if src.capture != nil {
+		wg.Go(func() { captureDiagnostics(src.capture, mon, &deviceTrouble, log) })
+	}
+	if interval, err := daemon.SdWatchdogEnabled(false); err == nil && interval > 0 {
+		wg.Go(func() { watchdog(done, interval/2, mon, &deviceTrouble, log) })
+	}
+	wg.Go(func() {
+		for {
+			select {
+			case <-done:
+				return
+			case <-hup:
+				reload(cfg, cfgPath, log)
+			}
+		}
+	})
+	return &wg
+}
+
+// captureDiagnostics logs every capture event as a diagnostic. It ends when
+// the capture closes its channel.
+func captureDiagnostics(c *capture.Capture, mon *monitor.Monitor, trouble *atomic.Int64, log *slog.Logger) {
+	for d := range c.Diagnostics() {
+		code := "capture." + strings.ReplaceAll(d.Kind.String(), " ", "_")
+		if d.Kind == capture.KindOpenFailed || d.Kind == capture.KindDeviceError {
+			trouble.Store(time.Now().UnixNano())
+		}
+		if d.Kind == capture.KindOpened && d.Attempt == 0 {
+			log.Info("capture device opened", "device", d.Device)
+			continue
+		}
+		mon.Diagnostic(d.Time, code, d.String(), map[string]float64{"sample_pos": float64(d.StreamPos),
+			"lost_samples": float64(d.Samples), "duration_s": d.Duration.Seconds(), "attempt": float64(d.Attempt)})
+	}
+}
+
+// watchdog tells systemd the agent is alive only while the processing loop
+// makes windows, or while the capture is known to be reopening a lost
+// device (then the loop waits for sound, it is not stuck).
+func watchdog(done <-chan struct{}, every time.Duration, mon *monitor.Monitor, trouble *atomic.Int64, log *slog.Logger) {
+	start := time.Now()
+	t := time.NewTicker(every)
+	defer t.Stop()
+	for {
+		select {
+		case <-done:
+			return
+		case now := <-t.C:
+			last := mon.LastWindow()
+			if last.IsZero() {
+				last = start
+			}
+			waiting := now.Sub(time.Unix(0, trouble.Load())) < stallLimit
+			if now.Sub(last) < stallLimit || waiting {
+				daemon.SdNotify(false, daemon.SdNotifyWatchdog)
+			} else {
+				log.Error("processing loop stalled; not feeding the watchdog", "since", now.Sub(last).Round(time.Second))
+			}
+		}
+	}
+}
+
+// reload re-reads the configuration on SIGHUP. A bad file is reported and
+// changes nothing. The settings that shape the running loop (source, log,
+// baseline, alarm, evidence) take effect at the next start, which a reload
+// says; nothing is applied half-way.
+func reload(old config.Config, path string, log *slog.Logger) {
+	cfg, err := config.Load(path)
+	if err != nil {
+		log.Error("config reload refused; keeping the running configuration", "err", err)
+		return
+	}
+	var changed []string
+	for _, c := range []struct {
+		name string
+		same bool
+	}{{"site", cfg.Site == old.Site}, {"asset", cfg.Asset == old.Asset}, {"baseline", cfg.Baseline == old.Baseline},
+		{"source", cfg.Source == old.Source}, {"alarm", cfg.Alarm == old.Alarm},
+		{"evidence", cfg.Evidence == old.Evidence}, {"log", cfg.Log == old.Log}} {
+		if !c.same {
+			changed = append(changed, c.name)
+		}
+	}
+	if len(changed) == 0 {
+		log.Info("config reloaded: no changes")
+		return
+	}
+	log.Warn("config reloaded: valid, changes take effect at the next restart", "changed", strings.Join(changed, ","))
+}

@@ -1,0 +1,188 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"log/slog"
+	"math"
+	"os"
+	"os/signal"
+	"syscall"
+	"time"
+
+	"github.com/coreos/go-systemd/v22/daemon"
+
+	"github.com/auscult/auscult/pkg/alarm"
+	"github.com/auscult/auscult/pkg/baseline"
+	"github.com/auscult/auscult/pkg/config"
+	"github.com/auscult/auscult/pkg/enrol"
+	"github.com/auscult/auscult/pkg/monitor"
+	"github.com/auscult/auscult/pkg/store"
+)
+
+// shutdownGrace bounds how long stopping may take after SIGTERM.
+const shutdownGrace = 5 * time.Second
+
+func runRun(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("run", stderr)
+	cfgPath := fs.String("config", "", "the agent's configuration file (required)")
+	srcSpec := fs.String("source", "", "override the configured source: device[:NAME], wav:PATH or stdin")
+	speed := fs.Float64("speed", -1, "replay speed of a wav source: 1 real time, 0 as fast as possible (default: the config's)")
+	if rest, err := parse(fs, args); err != nil {
+		return err
+	} else if len(rest) > 0 {
+		return usagef("unexpected argument %q", rest[0])
+	}
+	if *cfgPath == "" {
+		return usagef("--config FILE is required")
+	}
+	cfg, err := loadRunConfig(*cfgPath, *srcSpec, *speed)
+	if err != nil {
+		return err
+	}
+	log := slog.New(slog.NewTextHandler(stderr, nil)).With("asset", cfg.Asset)
+	return serve(cfg, *cfgPath, os.Stdin, log)
+}
+
+// loadRunConfig reads the config and applies the command-line overrides.
+func loadRunConfig(path, srcSpec string, speed float64) (config.Config, error) {
+	cfg, err := config.Load(path)
+	if err != nil {
+		return cfg, err
+	}
+	if srcSpec != "" {
+		if cfg.Source, err = parseSourceFlag(srcSpec, cfg.Source); err != nil {
+			return cfg, err
+		}
+	}
+	if speed >= 0 {
+		cfg.Source.Speed = speed
+	}
+	if cfg.Baseline == "" {
+		return cfg, fmt.Errorf("%s: baseline: is required to listen (enrol one with `auscult enroll`)", path)
+	}
+	return cfg, nil
+}
+
+// serve runs the agent until its source ends or it is told to stop.
+func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger) error {
+	b, err := baseline.Load(cfg.Baseline)
+	if err != nil {
+		return err
+	}
+	lines, err := enrol.Lines(b)
+	if err != nil {
+		return err
+	}
+	st, err := openLog(cfg.Log, false)
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if err := st.Close(); err != nil {
+			log.Error("closing the log", "err", err)
+		}
+	}()
+	if err := recordBaseline(st, b, cfg.Baseline, log); err != nil {
+		return err
+	}
+	src, err := openSource(cfg.Source, b.Features.Rate, stdin)
+	if err != nil {
+		return err
+	}
+	ac := alarm.DefaultConfig()
+	ac.K, ac.N = cfg.Alarm.DebounceK, cfg.Alarm.DebounceN
+	ac.ClearFraction, ac.Latch = cfg.Alarm.ClearFraction, cfg.Alarm.Latch
+	ac.OffDelay = seconds(cfg.Alarm.OffDelayS)
+	ac.MaxShelve = seconds(cfg.Alarm.MaxShelveH * 3600)
+	mon, err := monitor.New(monitor.Config{Baseline: b, Asset: cfg.Asset, Alarm: ac, Lines: lines,
+		EvidenceBefore: seconds(cfg.Evidence.BeforeS), EvidenceAfter: seconds(cfg.Evidence.AfterS),
+		SummaryPeriod: time.Duration(cfg.Log.SummaryMin) * time.Minute,
+		Clock:         src.clock(time.Now().UTC(), b.Features.Rate), Logger: log}, st)
+	if err != nil {
+		src.closeFn(context.Background())
+		return err
+	}
+
+	ctx, stop := signal.NotifyContext(context.Background(), syscall.SIGTERM, syscall.SIGINT)
+	defer stop()
+	hup := make(chan os.Signal, 1)
+	signal.Notify(hup, syscall.SIGHUP)
+	defer signal.Stop(hup)
+	done := make(chan struct{})
+	helpers := startHelpers(ctx, done, mon, src, hup, cfg, cfgPath, log)
+
+	log.Info("listening", "source", src.desc, "baseline", b.ID, "threshold", b.Calib.Threshold,
+		"log", cfg.Log.Path, "version", version)
+	daemon.SdNotify(false, daemon.SdNotifyReady)
+	runErr := mon.Run(ctx, src)
+	daemon.SdNotify(false, daemon.SdNotifyStopping)
+	closeCtx, cancel := context.WithTimeout(context.Background(), shutdownGrace)
+	defer cancel()
+	if err := src.closeFn(closeCtx); err != nil {
+		log.Error("closing the source", "err", err)
+	}
+	close(done)
+	helpers.Wait()
+	s := mon.Status()
+	log.Info("stopped", "windows", s.Windows, "alarm_state", s.Alarm, "reason", stopReason(ctx, runErr))
+	return runErr
+}
+
+func stopReason(ctx context.Context, err error) string {
+	switch {
+	case err != nil:
+		return "error"
+	case ctx.Err() != nil:
+		return "signal"
+	}
+	return "end of source"
+}
+
+func seconds(s float64) time.Duration { return time.Duration(s * float64(time.Second)) }
+
+// openLog opens the local log with the configured limits.
+func openLog(l config.Log, readOnly bool) (*store.Store, error) {
+	day := 24 * time.Hour
+	return store.Open(l.Path, store.Options{Timeout: 2 * time.Second, ReadOnly: readOnly,
+		MaxBytes: int64(l.MaxMB * (1 << 20)), FlushInterval: seconds(l.FlushS),
+		MaxAge: store.Ages{Events: time.Duration(l.EventDays) * day, Trend: time.Duration(l.TrendDays) * day,
+			Summaries: time.Duration(l.TrendDays) * day, Clips: time.Duration(l.ClipDays) * day}})
+}
+
+// recordBaseline adds b to the log's baseline history unless it is already
+// the newest entry, with its distance from the one before.
+func recordBaseline(st *store.Store, b *baseline.Baseline, path string, log *slog.Logger) error {
+	prev, err := st.Baseline(0)
+	if err == nil && prev.FileID == b.ID {
+		return nil
+	}
+	entry := store.Baseline{Created: b.Created, FileID: b.ID, Asset: b.Asset, Threshold: b.Calib.Threshold}
+	if err == nil {
+		entry.Previous = prev.ID
+		entry.Distance = math.NaN()
+		if old, lerr := baseline.Unmarshal(prev.File, "previous baseline"); lerr == nil {
+			entry.Distance = baselineDistance(old, b)
+		}
+	}
+	if entry.File, err = os.ReadFile(path); err != nil {
+		return err
+	}
+	if _, err := st.AddBaseline(entry); err != nil {
+		return err
+	}
+	log.Info("baseline recorded in the log", "baseline", b.ID, "distance_from_previous", entry.Distance)
+	return nil
+}
+
+// baselineDistance is how far the healthy sound moved between two
+// enrolments: the old model's distance of the new healthy mean. NaN when
+// they were enrolled with different settings.
+func baselineDistance(old, cur *baseline.Baseline) float64 {
+	if old.Features != cur.Features || old.Embed != cur.Embed || old.Model.Dim() != cur.Model.Dim() {
+		return math.NaN()
+	}
+	return old.Model.NewScorer().Distance(cur.Model.Mean)
+}
+
