@@ -185,4 +185,3 @@ func baselineDistance(old, cur *baseline.Baseline) float64 {
 	}
 	return old.Model.NewScorer().Distance(cur.Model.Mean)
 }
-
