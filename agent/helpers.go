@@ -4,6 +4,7 @@ import (
 	"context"
 	"log/slog"
 	"os"
+	"runtime"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -115,4 +116,30 @@ func reload(old config.Config, path string, log *slog.Logger) {
 		return
 	}
 	log.Warn("config reloaded: valid, changes take effect at the next restart", "changed", strings.Join(changed, ","))
+}
+
+// logStats logs the agent's own figures every interval until done.
+func logStats(done <-chan struct{}, every time.Duration, mon *monitor.Monitor, log *slog.Logger) {
+	t := time.NewTicker(every)
+	defer t.Stop()
+	for {
+		select {
+		case <-done:
+			return
+		case <-t.C:
+			logFigures(mon, log, "figures")
+		}
+	}
+}
+
+// logFigures logs windows processed, the decision lag, heap and goroutines:
+// what shows a leak or a loop falling behind.
+func logFigures(mon *monitor.Monitor, log *slog.Logger, msg string, extra ...any) {
+	s := mon.Status()
+	var ms runtime.MemStats
+	runtime.ReadMemStats(&ms)
+	args := append([]any{"windows", s.Windows, "alarm_state", s.Alarm, "machine", s.Machine,
+		"lag_mean_ms", s.LagMean.Milliseconds(), "lag_max_ms", s.LagMax.Milliseconds(),
+		"heap_bytes", ms.HeapAlloc, "goroutines", runtime.NumGoroutine()}, extra...)
+	log.Info(msg, args...)
 }

@@ -29,6 +29,8 @@ func runRun(args []string, stdout, stderr io.Writer) error {
 	cfgPath := fs.String("config", "", "the agent's configuration file (required)")
 	srcSpec := fs.String("source", "", "override the configured source: device[:NAME], wav:PATH or stdin")
 	speed := fs.Float64("speed", -1, "replay speed of a wav source: 1 real time, 0 as fast as possible (default: the config's)")
+	clock := fs.String("clock", "", "time stamps: wall (the computer's clock) or samples (counted from the start, for replays); default: wall for a device or stdin, samples for wav")
+	statsEvery := fs.Duration("stats-every", time.Hour, "how often to log the agent's own figures (windows, lag, heap, goroutines)")
 	if rest, err := parse(fs, args); err != nil {
 		return err
 	} else if len(rest) > 0 {
@@ -37,12 +39,18 @@ func runRun(args []string, stdout, stderr io.Writer) error {
 	if *cfgPath == "" {
 		return usagef("--config FILE is required")
 	}
+	if *clock != "" && *clock != "wall" && *clock != "samples" {
+		return usagef("--clock %q: want wall or samples", *clock)
+	}
+	if *statsEvery <= 0 {
+		return usagef("--stats-every %v: want a positive duration such as 10m", *statsEvery)
+	}
 	cfg, err := loadRunConfig(*cfgPath, *srcSpec, *speed)
 	if err != nil {
 		return err
 	}
 	log := slog.New(slog.NewTextHandler(stderr, nil)).With("asset", cfg.Asset)
-	return serve(cfg, *cfgPath, os.Stdin, log)
+	return serve(cfg, *cfgPath, os.Stdin, log, serveOptions{clock: *clock, statsEvery: *statsEvery})
 }
 
 // loadRunConfig reads the config and applies the command-line overrides.
@@ -65,8 +73,14 @@ func loadRunConfig(path, srcSpec string, speed float64) (config.Config, error) {
 	return cfg, nil
 }
 
+// serveOptions are the command line's settings beyond the config file.
+type serveOptions struct {
+	clock      string // "", "wall" or "samples"
+	statsEvery time.Duration
+}
+
 // serve runs the agent until its source ends or it is told to stop.
-func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger) error {
+func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger, so serveOptions) error {
 	b, err := baseline.Load(cfg.Baseline)
 	if err != nil {
 		return err
@@ -91,6 +105,12 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger)
 	if err != nil {
 		return err
 	}
+	switch so.clock {
+	case "wall":
+		src.clock = wallClock
+	case "samples":
+		src.clock = sampleClock
+	}
 	ac := alarm.DefaultConfig()
 	ac.K, ac.N = cfg.Alarm.DebounceK, cfg.Alarm.DebounceN
 	ac.ClearFraction, ac.Latch = cfg.Alarm.ClearFraction, cfg.Alarm.Latch
@@ -112,6 +132,7 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger)
 	defer signal.Stop(hup)
 	done := make(chan struct{})
 	helpers := startHelpers(ctx, done, mon, src, hup, cfg, cfgPath, log)
+	helpers.Go(func() { logStats(done, so.statsEvery, mon, log) })
 
 	log.Info("listening", "source", src.desc, "baseline", b.ID, "threshold", b.Calib.Threshold,
 		"log", cfg.Log.Path, "version", version)
@@ -125,8 +146,7 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger)
 	}
 	close(done)
 	helpers.Wait()
-	s := mon.Status()
-	log.Info("stopped", "windows", s.Windows, "alarm_state", s.Alarm, "reason", stopReason(ctx, runErr))
+	logFigures(mon, log, "stopped", "reason", stopReason(ctx, runErr))
 	return runErr
 }
 

@@ -20,11 +20,29 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	perFault := fs.Int("per-fault", def.TestPerFaultSeverity, "test recordings per fault and severity")
 	seconds := fs.Float64("seconds", def.ClipSeconds, "length of each recording in seconds")
 	rate := fs.Int("rate", def.Rate, "sample rate of the files in Hz")
+	script := fs.String("script", "", "instead of files, stream raw s16le PCM to stdout following this `script`, "+
+		"e.g. healthy@2h,bearing_outer/moderate@10m,stopped@5m (for `auscult run --source stdin`)")
+	snr := fs.Float64("snr", 6, "signal-to-noise ratio of a streamed script in dB (one of +10, +6, +3, 0, -3, -6)")
 	if _, err := parse(fs, args); err != nil {
 		return err
 	}
+	if *script != "" {
+		if *out != "" {
+			return usagef("--script streams to stdout; leave out --out")
+		}
+		phases, err := parseScript(*script)
+		if err != nil {
+			return err
+		}
+		if !snrAllowed(*snr) {
+			return usagef("--snr %g: want one of +10, +6, +3, 0, -3, -6", *snr)
+		}
+		fmt.Fprintf(stderr, "streaming pump %s at %g dB SNR, %d Hz s16le mono: %s\n",
+			sim.NewMachine(*seed).Asset, *snr, *rate, describeScript(phases))
+		return streamSim(stdout, *seed, *snr, *rate, phases)
+	}
 	if *out == "" {
-		return usagef("--out is required")
+		return usagef("--out is required (or --script to stream)")
 	}
 	// sim.Plan reads zero as "use the default", so --per-fault 0 would
 	// quietly write 5 recordings per fault and severity: refuse it.

@@ -50,9 +50,7 @@ func parseSourceFlag(spec string, base config.Source) (config.Source, error) {
 
 // openSource opens s delivering samples at rate Hz.
 func openSource(s config.Source, rate int, stdin io.Reader) (*liveSource, error) {
-	wall := func(time.Time, int) func(int64) time.Time {
-		return func(int64) time.Time { return time.Now().UTC() }
-	}
+	wall := wallClock
 	switch s.Kind {
 	case config.SourceDevice:
 		c, err := capture.New(capture.Config{Device: s.Device, Rate: s.RateHz, Channels: s.Channels,
@@ -93,11 +91,6 @@ func openSource(s config.Source, rate int, stdin io.Reader) (*liveSource, error)
 				chain.close()
 				return nil, err
 			}
-		}
-		// Replayed sound is stamped by its own sample count from the start,
-		// so an hour replayed in a minute still spans an hour of log.
-		sampleClock := func(start time.Time, rate int) func(int64) time.Time {
-			return func(pos int64) time.Time { return start.Add(time.Duration(pos) * time.Second / time.Duration(rate)) }
 		}
 		return &liveSource{Source: src, desc: fmt.Sprintf("%d WAV file(s) from %s at speed %g", len(files), s.Path, s.Speed),
 			closeFn: func(context.Context) error { return chain.close() }, clock: sampleClock}, nil
@@ -164,4 +157,15 @@ func (c *fileChain) close() error {
 	err := c.closeFn()
 	c.cur, c.closeFn = nil, nil
 	return err
+}
+
+// wallClock stamps what a window produces with the computer's clock.
+func wallClock(time.Time, int) func(int64) time.Time {
+	return func(int64) time.Time { return time.Now().UTC() }
+}
+
+// sampleClock stamps replayed sound by its own sample count from the start,
+// so an hour replayed in a minute still spans an hour of log.
+func sampleClock(start time.Time, rate int) func(int64) time.Time {
+	return func(pos int64) time.Time { return start.Add(time.Duration(pos) * time.Second / time.Duration(rate)) }
 }

@@ -33,6 +33,13 @@ type Status struct {
 	SensorFaults []string
 	// Windows counts the windows processed since the monitor started.
 	Windows int64
+	// LagMean and LagMax are how long after the time its last sample was
+	// due (Clock of the window's end) each window was decided: the
+	// latency from sample to decision when the source runs in real time.
+	// Meaningless for a wall clock (always about zero) or a replay faster
+	// than real time (negative).
+	LagMean, LagMax time.Duration
+	lagSum          time.Duration
 }
 
 func (s *Status) update(now time.Time, score, level float64, scored bool, machine gate.State, snap alarm.Snapshot) {
@@ -40,6 +47,12 @@ func (s *Status) update(now time.Time, score, level float64, scored bool, machin
 	s.Machine = machine.String()
 	s.Alarm, s.Severity, s.ShelvedUntil = snap.State.String(), snap.Severity.String(), snap.ShelvedUntil
 	s.Windows++
+	lag := time.Since(now)
+	s.lagSum += lag
+	s.LagMean = s.lagSum / time.Duration(s.Windows)
+	if s.Windows == 1 || lag > s.LagMax {
+		s.LagMax = lag
+	}
 }
 
 // Status returns a copy of the current status.
