@@ -7,9 +7,11 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"time"
 
 	"github.com/auscult/auscult/pkg/audio"
 	"github.com/auscult/auscult/pkg/baseline"
+	"github.com/auscult/auscult/pkg/config"
 	"github.com/auscult/auscult/pkg/embed"
 	"github.com/auscult/auscult/pkg/enrol"
 	"github.com/auscult/auscult/pkg/features"
@@ -72,6 +74,15 @@ func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
 	return fc, ec, nil
 }
 
+func (o *enrollOptions) enrolOptions(fc features.Config, ec embed.Config) enrol.Options {
+	eo := enrol.DefaultOptions()
+	eo.Features, eo.Embed, eo.Asset = fc, ec, o.asset
+	eo.Model.Floor = o.floor
+	eo.Calibration.FalseAlarmProb, eo.Calibration.WarnProb = o.faProb, o.warnProb
+	eo.Calibration.K, eo.Calibration.N = o.k, o.n
+	return eo
+}
+
 func runEnroll(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("enroll", stderr)
 	out := fs.String("out", "", "write the baseline to this `file` (required)")
@@ -85,9 +96,40 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "scale of the eigenvalue floor (1 = the sampling-noise edge)")
 	fs.StringVar(&o.parts, "parts", "low,fine", "embedding parts: low (quiet floor per mel band), fine (low-frequency lines), mean, std")
 	fs.IntVar(&o.trim, "trim", embed.DefaultConfig().Trim, "sub-window values trimmed at each end per dimension")
+	live := fs.Bool("live", false, "enrol from the configured source (the microphone) instead of files")
+	cfgPath := fs.String("config", "", "with --live: the agent's configuration file (source, asset, baseline path)")
+	srcSpec := fs.String("source", "", "with --live: override the configured source: device[:NAME], wav:PATH or stdin")
+	duration := fs.Duration("duration", 30*time.Minute, "with --live: how long to listen (Ctrl-C ends early)")
 	paths, err := parse(fs, args)
 	if err != nil {
 		return err
+	}
+	var cfg config.Config
+	if *live {
+		if len(paths) > 0 {
+			return usagef("--live listens to the configured source; leave out the files (%s)", paths[0])
+		}
+		if *cfgPath == "" {
+			return usagef("--live needs --config FILE")
+		}
+		if *duration < time.Minute || *duration > 24*time.Hour {
+			return usagef("--duration %v: want between 1m and 24h (30m is the usual)", *duration)
+		}
+		if cfg, err = config.Load(*cfgPath); err != nil {
+			return err
+		}
+		if *srcSpec != "" {
+			if cfg.Source, err = parseSourceFlag(*srcSpec, cfg.Source); err != nil {
+				return err
+			}
+		}
+		if *out == "" {
+			*out = cfg.Baseline
+		}
+		if o.asset == "" {
+			o.asset = cfg.Asset
+		}
+		o.channel = 0 // the source picks its channel
 	}
 	if *out == "" {
 		return usagef("--out is required")
@@ -111,6 +153,9 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	if err := writable(*out); err != nil {
 		return err
 	}
+	if *live {
+		return enrollLive(cfg.Source, *duration, *out, o, stdout, stderr)
+	}
 	files, err := wavPaths(paths)
 	if err != nil {
 		return err
@@ -132,12 +177,7 @@ func enroll(files []string, o enrollOptions, stderr io.Writer) (*baseline.Baseli
 	if err != nil {
 		return nil, err
 	}
-	eo := enrol.DefaultOptions()
-	eo.Features, eo.Embed, eo.Asset = fc, ec, o.asset
-	eo.Model.Floor = o.floor
-	eo.Calibration.FalseAlarmProb, eo.Calibration.WarnProb = o.faProb, o.warnProb
-	eo.Calibration.K, eo.Calibration.N = o.k, o.n
-	e, err := enrol.New(eo)
+	e, err := enrol.New(o.enrolOptions(fc, ec))
 	if err != nil {
 		return nil, err
 	}

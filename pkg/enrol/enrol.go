@@ -48,7 +48,13 @@ type Enroller struct {
 	groups []int
 	levels []float64
 	recs   []baseline.Recording
+	keep   func(w *embed.Window) bool
+	seen   int // windows offered, kept or not
 }
+
+// SetFilter makes Add keep only the windows keep accepts (for example only
+// those in which the machine runs); nil keeps all.
+func (e *Enroller) SetFilter(keep func(w *embed.Window) bool) { e.keep = keep }
 
 // New checks o and returns an enroller.
 func New(o Options) (*Enroller, error) {
@@ -68,7 +74,8 @@ func New(o Options) (*Enroller, error) {
 // Progress is what an enroller has gathered so far.
 type Progress struct {
 	Seconds      float64 // healthy sound analysed
-	Windows      int
+	Windows      int     // windows kept
+	Offered      int     // windows offered, kept or not (see SetFilter)
 	ClipFraction float64 // share of clipped samples in the current recording
 	LevelDBFS    float64 // level of the last window
 }
@@ -84,6 +91,14 @@ func (e *Enroller) Add(name string, src audio.Source, onWindow func(Progress) er
 	var n int
 	before := e.Seconds()
 	err := e.p.Run(src, func(w *embed.Window, _ float64) error {
+		e.seen++
+		if e.keep != nil && !e.keep(w) {
+			if onWindow == nil {
+				return nil
+			}
+			return onWindow(Progress{Seconds: before + float64(w.End)/rate, Windows: len(e.vecs), Offered: e.seen,
+				ClipFraction: clip / float64(max(n, 1)), LevelDBFS: w.LevelDBFS})
+		}
 		e.vecs = append(e.vecs, append([]float32(nil), w.Vec...))
 		e.groups = append(e.groups, group+int(float64(w.Start)/rate/BlockSeconds))
 		e.levels = append(e.levels, w.LevelDBFS)
@@ -94,7 +109,7 @@ func (e *Enroller) Add(name string, src audio.Source, onWindow func(Progress) er
 		if onWindow == nil {
 			return nil
 		}
-		return onWindow(Progress{Seconds: before + float64(w.End)/rate, Windows: len(e.vecs),
+		return onWindow(Progress{Seconds: before + float64(w.End)/rate, Windows: len(e.vecs), Offered: e.seen,
 			ClipFraction: clip / float64(n), LevelDBFS: w.LevelDBFS})
 	})
 	rec.Seconds = float64(e.p.SamplesRead()) / rate
