@@ -106,6 +106,15 @@ func TestRunRefusesBadInput(t *testing.T) {
 	wantFail(t, cli(t, "run", "--config", noBase), 1, "missing.bl")
 }
 
+// TestMain removes the agent binary built for the process tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if binPath != "" {
+		os.RemoveAll(filepath.Dir(binPath))
+	}
+	os.Exit(code)
+}
+
 var (
 	binOnce sync.Once
 	binPath string

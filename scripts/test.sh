@@ -5,8 +5,9 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 
 # Debian packages the tests use: sox writes reference WAV files; portaudio19-dev
-# (with libasound2-dev) builds live capture, tested through ALSA's file plugin.
-packages=(sox portaudio19-dev)
+# (with libasound2-dev) builds live capture, tested through ALSA's file plugin;
+# systemd brings systemd-analyze, which checks the service unit.
+packages=(sox portaudio19-dev systemd)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
