@@ -192,7 +192,11 @@ func recordBaseline(st *store.Store, b *baseline.Baseline, path string, log *slo
 	if _, err := st.AddBaseline(entry); err != nil {
 		return err
 	}
-	log.Info("baseline recorded in the log", "baseline", b.ID, "distance_from_previous", entry.Distance)
+	if entry.Previous == 0 {
+		log.Info("baseline recorded in the log: the first for this log", "baseline", b.ID)
+	} else {
+		log.Info("baseline recorded in the log", "baseline", b.ID, "previous", prev.FileID, "distance_from_previous", entry.Distance)
+	}
 	return nil
 }
 
