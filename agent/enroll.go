@@ -28,6 +28,7 @@ type enrollOptions struct {
 	floor    float64
 	parts    string
 	trim     int
+	window   int
 }
 
 func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
@@ -50,6 +51,9 @@ func (o *enrollOptions) configs() (features.Config, embed.Config, error) {
 	fc.FMax = audio.ResamplePassband * float64(o.rate) / 2
 	ec := embed.DefaultConfig()
 	ec.Trim = o.trim
+	if o.window != 0 {
+		ec.Window = o.window
+	}
 	ec.Mean, ec.Std, ec.Low, ec.Fine = false, false, false, false
 	for _, p := range strings.Split(o.parts, ",") {
 		switch strings.TrimSpace(p) {
@@ -96,6 +100,7 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "scale of the eigenvalue floor (1 = the sampling-noise edge)")
 	fs.StringVar(&o.parts, "parts", "low,fine", "embedding parts: low (quiet floor per mel band), fine (low-frequency lines), mean, std")
 	fs.IntVar(&o.trim, "trim", embed.DefaultConfig().Trim, "sub-window values trimmed at each end per dimension")
+	fs.IntVar(&o.window, "window", embed.DefaultConfig().Window, "sub-windows (1.024 s each) per analysis window; longer needs more enrolment and delays alarms")
 	live := fs.Bool("live", false, "enrol from the configured source (the microphone) instead of files")
 	cfgPath := fs.String("config", "", "with --live: the agent's configuration file (source, asset, baseline path)")
 	srcSpec := fs.String("source", "", "with --live: override the configured source: device[:NAME], wav:PATH or stdin")
@@ -144,6 +149,8 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 		return usagef("--warn-prob %g: want a probability above --false-alarm-prob (%g) and below 0.5", o.warnProb, o.faProb)
 	case !(o.floor > 0):
 		return usagef("--floor %g: want a positive scale, 1 is the default", o.floor)
+	case o.window < 2:
+		return usagef("--window %d: want 2 or more sub-windows, 5 is the default", o.window)
 	case o.trim < 0:
 		return usagef("--trim %d: want 0 or more", o.trim)
 	}
