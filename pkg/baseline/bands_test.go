@@ -8,8 +8,8 @@ import (
 
 func TestBandFinder(t *testing.T) {
 	layout := []embed.Dim{
-		{"mel_low", 0, 100}, {"mel_low", 100, 200}, {"mel_low", 200, 300}, {"mel_low", 300, 400},
-		{"fine", 25, 26}, {"fine", 26, 27}, {"fine", 27, 29},
+		{Part: "mel_low", LoHz: 0, HiHz: 100}, {Part: "mel_low", LoHz: 100, HiHz: 200}, {Part: "mel_low", LoHz: 200, HiHz: 300}, {Part: "mel_low", LoHz: 300, HiHz: 400},
+		{Part: "fine", LoHz: 25, HiHz: 26}, {Part: "fine", LoHz: 26, HiHz: 27}, {Part: "fine", LoHz: 27, HiHz: 29},
 	}
 	f := NewBandFinder(layout)
 	dst := make([]Band, 0, 3)
@@ -18,9 +18,9 @@ func TestBandFinder(t *testing.T) {
 	dev := []float32{0.2, 3, 4, 2.5, 0.1, -3.5, 0.3}
 	got := f.Find(dev, dst)
 	want := []Band{
-		{"mel_low", 100, 400, 4},
-		{"fine", 26, 27, -3.5},
-		{"fine", 27, 29, 0.3},
+		{Part: "mel_low", LoHz: 100, HiHz: 400, Deviation: 4},
+		{Part: "fine", LoHz: 26, HiHz: 27, Deviation: -3.5},
+		{Part: "fine", LoHz: 27, HiHz: 29, Deviation: 0.3},
 	}
 	if len(got) != len(want) {
 		t.Fatalf("got %v", got)

@@ -33,7 +33,7 @@ type MachineConfig struct {
 	// evidence between them, turn Running into Stopped (default 3, about
 	// 6 s at the default step).
 	StopWindows int `json:"stop_windows"`
-	// RunWindows is the same for Stopped to Running (default 2).
+	// RunWindows is the same for Stopped to Running (default 3).
 	RunWindows int `json:"run_windows"`
 	// StartWindows is the same for leaving Unknown either way (default 3).
 	StartWindows int `json:"start_windows"`
@@ -43,7 +43,7 @@ type MachineConfig struct {
 // otherwise.
 func DefaultMachineConfig() MachineConfig {
 	return MachineConfig{LevelSpanDB: 6, LevelSpanStd: 3, StopMatch: 0.55, RunMatch: 0.8,
-		LevelHysteresisDB: 2, StopWindows: 3, RunWindows: 2, StartWindows: 3}
+		LevelHysteresisDB: 2, StopWindows: 3, RunWindows: 3, StartWindows: 3}
 }
 
 // Validate reports the first field that cannot work, by name.
