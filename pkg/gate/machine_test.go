@@ -66,8 +66,10 @@ func TestMachineDecisions(t *testing.T) {
 		{"stopped from the start", false, []win{{5, -2, off}}, []change{{Stopped, 2}}},
 		{"stop after three windows", false, []win{{5, 0, on}, {5, -3, off}}, []change{{Running, 2}, {Stopped, 7}}},
 		{"stop at low SNR: level unchanged", false, []win{{5, 0, on}, {5, 0, off}}, []change{{Running, 2}, {Stopped, 7}}},
-		{"restart after two windows", false, []win{{5, 0, on}, {5, -3, off}, {4, 0, on}},
-			[]change{{Running, 2}, {Stopped, 7}, {Running, 11}}},
+		{"restart after three windows", false, []win{{5, 0, on}, {5, -3, off}, {4, 0, on}},
+			[]change{{Running, 2}, {Stopped, 7}, {Running, 12}}},
+		{"two windows of lines do not restart", false, []win{{5, 0, on}, {5, -3, off}, {2, 0, on}, {3, -3, off}},
+			[]change{{Running, 2}, {Stopped, 7}}},
 		{"two-window dropout does not stop", false, []win{{5, 0, on}, {2, -3, off}, {5, 0, on}}, []change{{Running, 2}}},
 		{"gain +3 dB", false, []win{{5, 0, on}, {10, 3, on}}, []change{{Running, 2}}},
 		{"gain -3 dB", false, []win{{5, 0, on}, {10, -3, on}}, []change{{Running, 2}}},
@@ -84,8 +86,8 @@ func TestMachineDecisions(t *testing.T) {
 		{"level only: stop needs a deep drop", true, []win{{5, 0, off}, {5, -5, off}, {5, -7, off}},
 			[]change{{Running, 2}, {Stopped, 12}}},
 		// Back to running needs the level 2 dB above the bottom of the range.
-		{"level only: hysteresis", true, []win{{5, 0, off}, {3, -7, off}, {5, -5, off}, {2, -3.5, off}},
-			[]change{{Running, 2}, {Stopped, 7}, {Running, 14}}},
+		{"level only: hysteresis", true, []win{{5, 0, off}, {3, -7, off}, {5, -5, off}, {3, -3.5, off}},
+			[]change{{Running, 2}, {Stopped, 7}, {Running, 15}}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
