@@ -40,7 +40,7 @@ func startHelpers(ctx context.Context, done <-chan struct{}, mon *monitor.Monito
 			case <-done:
 				return
 			case <-hup:
-				reload(cfg, cfgPath, log)
+				cfg = reload(cfg, cfgPath, mon, log)
 			}
 		}
 	})
@@ -90,32 +90,45 @@ func watchdog(done <-chan struct{}, every time.Duration, mon *monitor.Monitor, t
 	}
 }
 
-// reload re-reads the configuration on SIGHUP. A bad file is reported and
-// changes nothing. The settings that shape the running loop (source, log,
-// baseline, alarm, evidence) take effect at the next start, which a reload
-// says; nothing is applied half-way.
-func reload(old config.Config, path string, log *slog.Logger) {
+// reload re-reads the configuration on SIGHUP and returns the one now in
+// force. A bad file is reported and changes nothing. The alarm's clear
+// fraction, off-delay, latching and shelve limit apply at once, keeping the
+// alarm state; everything else that shapes the running loop (source, log,
+// baseline, debounce, evidence) waits for a restart, which the log line says.
+func reload(old config.Config, path string, mon *monitor.Monitor, log *slog.Logger) config.Config {
 	cfg, err := config.Load(path)
 	if err != nil {
 		log.Error("config reload refused; keeping the running configuration", "err", err)
-		return
+		return old
 	}
-	var changed []string
+	cfg.Source = old.Source // the running source may come from --source
+	applied := old
+	a, b := old.Alarm, cfg.Alarm
+	if a != b && a.DebounceK == b.DebounceK && a.DebounceN == b.DebounceN {
+		if err := mon.RetuneAlarm(b.ClearFraction, seconds(b.OffDelayS), b.Latch, seconds(b.MaxShelveH*3600)); err != nil {
+			log.Error("config reload: alarm settings not applied", "err", err)
+		} else {
+			applied.Alarm = b
+			log.Info("config reload: alarm settings applied", "clear_fraction", b.ClearFraction,
+				"off_delay_s", b.OffDelayS, "latch", b.Latch, "max_shelve_h", b.MaxShelveH)
+		}
+	}
+	var later []string
 	for _, c := range []struct {
 		name string
 		same bool
 	}{{"site", cfg.Site == old.Site}, {"asset", cfg.Asset == old.Asset}, {"baseline", cfg.Baseline == old.Baseline},
-		{"source", cfg.Source == old.Source}, {"alarm", cfg.Alarm == old.Alarm},
-		{"evidence", cfg.Evidence == old.Evidence}, {"log", cfg.Log == old.Log}} {
+		{"alarm.debounce", applied.Alarm == cfg.Alarm}, {"evidence", cfg.Evidence == old.Evidence}, {"log", cfg.Log == old.Log}} {
 		if !c.same {
-			changed = append(changed, c.name)
+			later = append(later, c.name)
 		}
 	}
-	if len(changed) == 0 {
-		log.Info("config reloaded: no changes")
-		return
+	if len(later) > 0 {
+		log.Warn("config reload: these changes take effect at the next restart", "changed", strings.Join(later, ","))
+	} else if applied == old {
+		log.Info("config reload: no changes")
 	}
-	log.Warn("config reloaded: valid, changes take effect at the next restart", "changed", strings.Join(changed, ","))
+	return applied
 }
 
 // logStats logs the agent's own figures every interval until done.

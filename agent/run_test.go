@@ -315,3 +315,36 @@ func TestRunOnPortAudioDevice(t *testing.T) {
 		t.Fatalf("no windows scored from the device: %v %v", trend, err)
 	}
 }
+
+// SIGHUP re-reads the config: alarm timings apply at once, a broken file is
+// refused and the agent keeps running, other changes wait for a restart.
+func TestRunReloadsOnSIGHUP(t *testing.T) {
+	s := simulateSkid(t)
+	source := fmt.Sprintf("  kind: wav\n  path: %s\n  speed: 1", filepath.Join(s.dir, "test"))
+	cfg, _ := writeConfig(t, s.baseline, source)
+	p := start(t, nil, "run", "--config", cfg)
+	p.waitFor(t, "listening", 10*time.Second)
+	text, _ := os.ReadFile(cfg)
+	hup := func(content string) {
+		t.Helper()
+		if err := os.WriteFile(cfg, []byte(content), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := p.cmd.Process.Signal(syscall.SIGHUP); err != nil {
+			t.Fatal(err)
+		}
+	}
+	hup(string(text) + "alarm:\n  off_delay_s: 40\n  latch: true\n")
+	p.waitFor(t, "alarm settings applied", 5*time.Second)
+	hup(string(text) + "alarm:\n  off_delay: 40\n")
+	p.waitFor(t, "config reload refused", 5*time.Second)
+	if !strings.Contains(p.log(), "alarm.off_delay: unknown key") {
+		t.Errorf("refusal does not name the key:\n%s", p.log())
+	}
+	hup(strings.Replace(string(text), "asset: P-492B", "asset: P-492C", 1))
+	p.waitFor(t, "take effect at the next restart", 5*time.Second)
+	p.cmd.Process.Signal(syscall.SIGTERM)
+	if err := <-p.done; err != nil {
+		t.Fatalf("exit: %v\n%s", err, p.log())
+	}
+}

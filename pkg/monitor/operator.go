@@ -51,3 +51,18 @@ func firstErr(errs ...error) error {
 	}
 	return nil
 }
+
+// RetuneAlarm applies new alarm settings without losing the alarm state:
+// only the clear fraction, off-delay, latching and shelve limit may change
+// (see alarm.Tracker.Retune); thresholds and the debounce need a restart.
+func (m *Monitor) RetuneAlarm(clearFraction float64, offDelay time.Duration, latch bool, maxShelve time.Duration) error {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	c := m.cfg.Alarm
+	c.ClearFraction, c.OffDelay, c.Latch, c.MaxShelve = clearFraction, offDelay, latch, maxShelve
+	if err := m.tracker.Retune(c); err != nil {
+		return err
+	}
+	m.cfg.Alarm = c
+	return nil
+}
