@@ -119,7 +119,11 @@ func (m *Monitor) Diagnostic(now time.Time, code, message string, values map[str
 func (m *Monitor) append(e store.Event) uint64 {
 	e.Time = e.Time.UTC()
 	seq, err := m.sink.AppendEvent(e)
-	m.fail(err)
+	if err != nil {
+		m.fail(err)
+		m.cfg.Logger.Error(e.Message, "event", e.Code, "stored", false, "err", err)
+		return 0
+	}
 	m.cfg.Logger.Info(e.Message, "event", e.Code, "seq", seq, "score", e.Score)
 	if e.Kind == store.EventAlarm && strings.HasSuffix(e.Code, ".raised") {
 		m.summary.alarms++
