@@ -125,6 +125,11 @@ var (
 // (signals, live capture).
 func agentBinary(t *testing.T) string {
 	t.Helper()
+	if testing.Short() {
+		// The binary is built without the race detector anyway; the full
+		// (non-short) run covers these tests.
+		t.Skip("short mode: skips tests that run the agent as a separate process")
+	}
 	binOnce.Do(func() {
 		dir, err := os.MkdirTemp("", "auscult-bin-")
 		if err != nil {

@@ -32,6 +32,6 @@ go test -run '^$' -bench . -benchtime 1x ./... >/dev/null
 echo "== fuzz the WAV parser briefly"
 go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio >/dev/null
 echo "== race detector on the concurrent parts"
-go test -count=1 -race ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor >/dev/null
+go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor >/dev/null
 echo "== tests"
 go test -count=1 ./...

@@ -42,10 +42,11 @@ type outcome struct {
 	stopDelay, runDelay int     // windows from switch-off/on to the event; -1: never
 	spurious            int     // state changes not asked for by the scenario
 	runScore, stopScore float64 // mean anomaly distance while running / once stopped
+	stopOver            float64 // share of stopped windows above the alarm threshold
 	events              []MachineEvent
 }
 
-func judge(out []gated, events []MachineEvent, stepSamples int64) outcome {
+func judge(out []gated, events []MachineEvent, stepSamples int64, threshold float64) outcome {
 	o := outcome{startS: -1, stopDelay: -1, runDelay: -1, events: events}
 	stopAt, runAt := int64(stopChunk*simChunk), int64(restartChunk*simChunk)
 	for _, e := range events {
@@ -72,10 +73,14 @@ func judge(out []gated, events []MachineEvent, stepSamples int64) outcome {
 		case w.start >= stopAt:
 			o.stopScore += w.score
 			ns++
+			if w.score > threshold {
+				o.stopOver++
+			}
 		}
 	}
 	o.runScore /= float64(max(nr, 1))
 	o.stopScore /= float64(max(ns, 1))
+	o.stopOver /= float64(max(ns, 1))
 	return o
 }
 
@@ -84,28 +89,26 @@ func judge(out []gated, events []MachineEvent, stepSamples int64) outcome {
 // running, switched off for 50 s, running again, a +3 dB and a -3 dB gain
 // drift, and a change to its lowest set-point. The gate must read running
 // while it runs, stopped soon after switch-off and running soon after
-// restart, and nothing else. At -6 dB SNR the lines sink into the
-// background; there only "no false stop while running" is required, and the
-// rest is reported.
+// restart, and nothing else. Lower SNRs, where this no longer holds, and
+// more pumps are measured by TestMachineSweep.
 func TestMachineOnSimulator(t *testing.T) {
 	const maxDelay = 8 // windows, about 16 s, of which the 10 s window itself takes 5
 	tests := []struct {
-		name   string
-		seed   int64
-		snr    float64
-		strict bool // stop and restart must be detected
+		name string
+		seed int64
+		snr  float64
 	}{
-		{"seed1/+10dB", 1, 10, true},
-		{"seed1/+3dB", 1, 3, true},
-		{"seed1/0dB", 1, 0, true},
-		{"seed2/0dB", 2, 0, true},
-		{"seed1/-6dB", 1, -6, false},
+		{"seed1/+10dB", 1, 10},
+		{"seed1/+3dB", 1, 3},
+		{"seed1/0dB", 1, 0},
+		{"seed2/0dB", 2, 0},
 	}
 	if testing.Short() {
 		tests = tests[2:3]
 	}
 	var table strings.Builder
-	fmt.Fprintf(&table, "%-12s %-9s %-10s %-10s %-9s %-16s\n", "case", "start s", "stop win", "run win", "spurious", "score run/stop")
+	fmt.Fprintf(&table, "%-12s %-8s %-9s %-8s %-9s %-15s %s\n", "case", "start s", "stop win", "run win", "spurious",
+		"score run/stop", "stopped over threshold")
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			m := sim.NewMachine(tc.seed)
@@ -115,21 +118,12 @@ func TestMachineOnSimulator(t *testing.T) {
 			}
 			out, events := runGate(t, m, b, ref, tc.snr, totalChunks, scenario(m))
 			step := int64(b.Embed.Step * b.Embed.SubHops * b.Features.Hop)
-			o := judge(out, events, step)
-			fmt.Fprintf(&table, "%-12s %-9.1f %-10d %-10d %-9d %.3f/%.3f\n", tc.name, o.startS, o.stopDelay, o.runDelay,
-				o.spurious, o.runScore, o.stopScore)
+			o := judge(out, events, step, b.Calib.Threshold)
+			fmt.Fprintf(&table, "%-12s %-8.1f %-9d %-8d %-9d %.3f/%.3f     %.0f %%\n", tc.name, o.startS, o.stopDelay, o.runDelay,
+				o.spurious, o.runScore, o.stopScore, 100*o.stopOver)
 			for _, e := range events {
 				t.Logf("%s -> %s at %.1f s (onset %.1f s): level %.1f dBFS, drop %.1f dB, match %.2f",
 					e.From, e.To, float64(e.SamplePos)/simRate, float64(e.OnsetPos)/simRate, e.LevelDBFS, e.DropDB, e.Match)
-			}
-			if !tc.strict {
-				for _, e := range events {
-					running := e.SamplePos < stopChunk*simChunk || e.SamplePos > restartChunk*simChunk+maxDelay*step
-					if e.To == Stopped && running {
-						t.Errorf("read stopped at %.1f s while the machine ran", float64(e.SamplePos)/simRate)
-					}
-				}
-				return
 			}
 			if o.startS < 0 || o.startS > 20 {
 				t.Errorf("left Unknown at %.1f s, want running by 20 s", o.startS)
@@ -145,5 +139,5 @@ func TestMachineOnSimulator(t *testing.T) {
 			}
 		})
 	}
-	t.Logf("windows every %.2f s; delays count windows after the switch\n%s", 2.048, table.String())
+	t.Logf("windows every 2.048 s; delays count windows after the switch\n%s", table.String())
 }

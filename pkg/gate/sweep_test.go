@@ -35,7 +35,8 @@ func TestMachineSweep(t *testing.T) {
 	faults := []string{sim.FaultCavitation, sim.FaultBearingOuter, sim.FaultDryRunning, sim.FaultImpellerDamage,
 		sim.FaultLooseness, sim.FaultLeak}
 	var table strings.Builder
-	fmt.Fprintf(&table, "%-6s %-5s %-6s %-8s %-8s %-8s %s\n", "seed", "snr", "lines", "stop win", "run win", "spurious", "false stops")
+	fmt.Fprintf(&table, "%-5s %-5s %-6s %-9s %-8s %-9s %-12s %s\n", "seed", "snr", "lines", "stop win", "run win", "spurious",
+		"false stops", "stopped over threshold")
 	for seed := int64(1); seed <= 8; seed++ {
 		for _, snr := range snrs {
 			m := sim.NewMachine(seed)
@@ -51,7 +52,7 @@ func TestMachineSweep(t *testing.T) {
 			}
 			out, events := runGate(t, m, b, ref, snr, totalChunks+6, plan)
 			step := int64(b.Embed.Step * b.Embed.SubHops * b.Features.Hop)
-			o := judge(out, events, step)
+			o := judge(out, events, step, b.Calib.Threshold)
 			falseStops := 0
 			for _, e := range events {
 				running := e.SamplePos < stopChunk*simChunk || e.SamplePos > restartChunk*simChunk+8*step
@@ -60,8 +61,8 @@ func TestMachineSweep(t *testing.T) {
 					t.Errorf("seed %d, %g dB: read stopped at %.1f s while the machine ran", seed, snr, float64(e.SamplePos)/simRate)
 				}
 			}
-			fmt.Fprintf(&table, "%-6d %-5g %-6d %-8d %-8d %-8d %d\n", seed, snr, len(ref.Lines.Bands), o.stopDelay, o.runDelay,
-				o.spurious, falseStops)
+			fmt.Fprintf(&table, "%-5d %-5g %-6d %-9d %-8d %-9d %-12d %.0f %%\n", seed, snr, len(ref.Lines.Bands), o.stopDelay,
+				o.runDelay, o.spurious, falseStops, 100*o.stopOver)
 		}
 	}
 	t.Logf("delays in windows after the switch (-1: not detected)\n%s", table.String())
