@@ -17,9 +17,10 @@ import (
 	"github.com/auscult/auscult/pkg/monitor"
 )
 
-// stallLimit is how long the processing loop may go without a window before
-// the watchdog stops vouching for it (a window comes about every 2 s).
-const stallLimit = 30 * time.Second
+// minStallLimit is the shortest time the processing loop may go without a
+// window before the watchdog stops vouching for it (a window comes about
+// every 2 s); the limit is the watchdog timeout itself when that is longer.
+const minStallLimit = 10 * time.Second
 
 // startHelpers starts the goroutines that serve a running agent: capture
 // diagnostics into the log, the systemd watchdog, and SIGHUP handling. They
@@ -31,8 +32,8 @@ func startHelpers(ctx context.Context, done <-chan struct{}, mon *monitor.Monito
 	if src.capture != nil {
 		wg.Go(func() { captureDiagnostics(src.capture, mon, &deviceTrouble, log) })
 	}
-	if interval, err := daemon.SdWatchdogEnabled(false); err == nil && interval > 0 {
-		wg.Go(func() { watchdog(done, interval/2, mon, &deviceTrouble, log) })
+	if timeout, err := daemon.SdWatchdogEnabled(false); err == nil && timeout > 0 {
+		wg.Go(func() { watchdog(done, timeout/2, max(timeout, minStallLimit), mon, &deviceTrouble, log) })
 	}
 	wg.Go(func() {
 		for {
@@ -67,7 +68,7 @@ func captureDiagnostics(c *capture.Capture, mon *monitor.Monitor, trouble *atomi
 // watchdog tells systemd the agent is alive only while the processing loop
 // makes windows, or while the capture is known to be reopening a lost
 // device (then the loop waits for sound, it is not stuck).
-func watchdog(done <-chan struct{}, every time.Duration, mon *monitor.Monitor, trouble *atomic.Int64, log *slog.Logger) {
+func watchdog(done <-chan struct{}, every, stallLimit time.Duration, mon *monitor.Monitor, trouble *atomic.Int64, log *slog.Logger) {
 	start := time.Now()
 	t := time.NewTicker(every)
 	defer t.Stop()
