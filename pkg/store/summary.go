@@ -120,17 +120,7 @@ func (s *Store) AddSummary(m Summary) error {
 	if err := m.validate(); err != nil {
 		return err
 	}
-	if err := s.begin(true); err != nil {
-		return err
-	}
-	defer s.life.RUnlock()
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	if len(s.pendingTrend)+len(s.pendingSum) >= MaxPending {
-		return fmt.Errorf("%w: %d buffered for %s (last flush error: %v)", ErrBacklog, MaxPending, s.path, s.lastFlushErr)
-	}
-	s.pendingSum = append(s.pendingSum, m)
-	return nil
+	return s.buffer(func() { s.pendingSum = append(s.pendingSum, m) })
 }
 
 // Summaries returns the stored summaries with Start in [r.From, r.To), in

@@ -119,6 +119,12 @@ func (s *Store) AddTrend(p TrendPoint) error {
 	if err := p.validate(); err != nil {
 		return err
 	}
+	return s.buffer(func() { s.pendingTrend = append(s.pendingTrend, p) })
+}
+
+// buffer runs add (which appends a validated record to a pending list)
+// under the store's lock, unless the backlog is full.
+func (s *Store) buffer(add func()) error {
 	if err := s.begin(true); err != nil {
 		return err
 	}
@@ -128,7 +134,7 @@ func (s *Store) AddTrend(p TrendPoint) error {
 	if len(s.pendingTrend)+len(s.pendingSum) >= MaxPending {
 		return fmt.Errorf("%w: %d buffered for %s (last flush error: %v)", ErrBacklog, MaxPending, s.path, s.lastFlushErr)
 	}
-	s.pendingTrend = append(s.pendingTrend, p)
+	add()
 	return nil
 }
 
