@@ -16,6 +16,7 @@ import (
 	"time"
 
 	"github.com/auscult/auscult/pkg/audio"
+	"github.com/auscult/auscult/pkg/capture/capturetest"
 	"github.com/auscult/auscult/pkg/store"
 )
 
@@ -229,20 +230,6 @@ func TestRunStopsOnSIGTERM(t *testing.T) {
 	}
 }
 
-// alsaTestmic is ALSA's file plugin as a capture device (see
-// ../shared/PLATFORM-NOTES.md): PortAudio opens it like a sound card and
-// reads the raw s16le file named by AUSCULT_TEST_INFILE.
-const alsaTestmic = `pcm.null { type null }
-pcm.testmic {
-    type file
-    slave.pcm "null"
-    file "/dev/null"
-    infile { @func getenv vars [ AUSCULT_TEST_INFILE ] default "/dev/zero" }
-    format "raw"
-}
-pcm.!default "testmic"
-`
-
 // The whole agent on real PortAudio: healthy sound from a simulated
 // recording through a virtual ALSA capture device, then a dead microphone
 // (the device delivers zeros once the file ends). The agent must score the
@@ -251,10 +238,6 @@ pcm.!default "testmic"
 func TestRunOnPortAudioDevice(t *testing.T) {
 	s := simulateSkid(t)
 	dir := t.TempDir()
-	conf := filepath.Join(dir, "asound.conf")
-	if err := os.WriteFile(conf, []byte(alsaTestmic), 0o644); err != nil {
-		t.Fatal(err)
-	}
 	infile := filepath.Join(dir, "mic.raw")
 	var raw bytes.Buffer
 	files, _ := filepath.Glob(filepath.Join(s.dir, "train", "*.wav"))
@@ -280,7 +263,10 @@ func TestRunOnPortAudioDevice(t *testing.T) {
 	if err := os.WriteFile(infile, raw.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	env := []string{"ALSA_CONFIG_PATH=" + conf, "AUSCULT_TEST_INFILE=" + infile}
+	env, err := capturetest.Env(dir, infile)
+	if err != nil {
+		t.Fatal(err)
+	}
 	out, err := exec.Command(agentBinary(t), "devices").CombinedOutput()
 	if err != nil || !strings.Contains(string(out), "testmic") {
 		cmd := exec.Command(agentBinary(t), "devices")

@@ -8,6 +8,7 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
+	"github.com/auscult/auscult/pkg/capture/capturetest"
 	"math"
 	"os"
 	"os/exec"
@@ -26,16 +27,7 @@ import (
 // device (no ALSA host API) they skip, unless CI=true, where they fail.
 
 // alsaConf is the ALSA configuration of PLATFORM-NOTES.md.
-const alsaConf = `pcm.null { type null }
-pcm.testmic {
-    type file
-    slave.pcm "null"
-    file "/dev/null"
-    infile { @func getenv vars [ AUSCULT_TEST_INFILE ] default "/dev/zero" }
-    format "raw"
-}
-pcm.!default "testmic"
-`
+const alsaConf = capturetest.ALSAConfig
 
 const liveRate = 8000
 
