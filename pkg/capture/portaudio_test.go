@@ -8,7 +8,6 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"github.com/auscult/auscult/pkg/capture/capturetest"
 	"math"
 	"os"
 	"os/exec"
@@ -17,6 +16,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"github.com/auscult/auscult/pkg/capture/capturetest"
 )
 
 // These tests run real PortAudio (the Debian package libportaudio2,
