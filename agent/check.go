@@ -60,7 +60,14 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	} else {
 		fmt.Fprintf(stdout, "microphone  %s\n", line)
 	}
-	fmt.Fprintln(stdout, "broker      none configured")
+	if cfg.MQTT.URL == "" {
+		fmt.Fprintln(stdout, "broker      none configured (mqtt.url): alarms stay in the local log")
+	} else if line, err := checkBroker(cfg.MQTT.URL); err != nil {
+		fmt.Fprintf(stdout, "broker      FAIL %v\n", err)
+		failed = append(failed, "broker")
+	} else {
+		fmt.Fprintf(stdout, "broker      %s\n", line)
+	}
 	if len(failed) > 0 {
 		return fmt.Errorf("%d check(s) failed: %v", len(failed), failed)
 	}

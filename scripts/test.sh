@@ -6,8 +6,9 @@ cd "$(dirname "$0")/.."
 
 # Debian packages the tests use: sox writes reference WAV files; portaudio19-dev
 # (with libasound2-dev) builds live capture, tested through ALSA's file plugin;
-# systemd brings systemd-analyze, which checks the service unit.
-packages=(sox portaudio19-dev systemd)
+# systemd brings systemd-analyze, which checks the service unit; mosquitto is the
+# real broker the tests start on a free loopback port.
+packages=(sox portaudio19-dev systemd mosquitto)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")

@@ -14,6 +14,13 @@ type Config struct {
 	Alarm    Alarm    `yaml:"alarm"`
 	Evidence Evidence `yaml:"evidence"`
 	Log      Log      `yaml:"log"`
+	MQTT     MQTT     `yaml:"mqtt"`
+}
+
+// MQTT names the plant's broker. Empty URL: no broker (the local log only).
+type MQTT struct {
+	// URL is the broker, e.g. tcp://10.20.0.5:1883 or ssl://broker.site:8883.
+	URL string `yaml:"url"`
 }
 
 // Source kinds.

@@ -63,6 +63,7 @@ func TestParseErrors(t *testing.T) {
 		{"k over n", "asset: P-1\nalarm:\n  debounce_k: 6\n  debounce_n: 5\n", []string{"1 <= debounce_k <= debounce_n"}},
 		{"summary not dividing a day", "asset: P-1\nlog:\n  summary_min: 7\n", []string{"log.summary_min: must divide a day"}},
 		{"not yaml", "asset: [\n", []string{"agent.yaml: not valid YAML"}},
+		{"bad broker url", "asset: P-1\nmqtt:\n  url: 10.0.0.5:1883\n", []string{"agent.yaml:3: mqtt.url:", "tcp"}},
 		{"two problems at once", "asset: P-1\nsource:\n  rate_hz: 1\nlog:\n  flush_s: 0\n", []string{"source.rate_hz", "log.flush_s"}},
 	}
 	for _, tc := range cases {

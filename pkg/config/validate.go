@@ -3,6 +3,8 @@ package config
 import (
 	"fmt"
 	"regexp"
+	"slices"
+	"strings"
 )
 
 // tagPattern is what site and asset names may hold: they become MQTT topic
@@ -88,6 +90,12 @@ func (c Config) validate(file string, lines map[string]int) []error {
 	}
 	if l.SummaryMin < 1 || l.SummaryMin > 1440 || 1440%l.SummaryMin != 0 {
 		bad("log.summary_min", "must divide a day (e.g. 15, 60, 1440 minutes), got %d", l.SummaryMin)
+	}
+	if u := c.MQTT.URL; u != "" {
+		scheme, rest, ok := strings.Cut(u, "://")
+		if !ok || rest == "" || !slices.Contains([]string{"tcp", "ssl", "tls", "ws", "wss", "mqtt", "mqtts"}, scheme) {
+			bad("mqtt.url", "%q: want SCHEME://HOST:PORT with scheme tcp, ssl, tls, ws, wss, mqtt or mqtts", u)
+		}
 	}
 	return errs
 }
