@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/auscult/auscult/pkg/audio"
@@ -56,19 +57,49 @@ type skid struct {
 	enroll   string // enroll's stdout
 }
 
-// simulateSkid writes a small simulated data set into a temporary folder
-// and enrols its healthy recordings. Fewer or shorter healthy recordings
-// (20 of 10 s, or 40 of 6 s) pass the enrolment checks but leave too few
-// distinct held-out windows for the threshold fit.
+// simulateSkid returns a small simulated data set with its healthy
+// recordings enrolled. It is made once per test binary and shared: tests
+// must only read it (write what they make into their own temporary
+// folders). Fewer or shorter healthy recordings (20 of 10 s, or 40 of 6 s)
+// pass the enrolment checks but leave too few distinct held-out windows for
+// the threshold fit.
 func simulateSkid(t *testing.T) skid {
 	t.Helper()
-	dir := filepath.Join(t.TempDir(), "obrinvale")
-	mustRun(t, "simulate", "--out", dir, "--seed", "3", "--train", "30", "--test-normal", "6",
-		"--per-fault", "1", "--seconds", "10")
-	s := skid{dir: dir, baseline: filepath.Join(t.TempDir(), "p-pump.bl")}
-	s.enroll = mustRun(t, "enroll", "--out", s.baseline, "--asset", "P-492B", filepath.Join(dir, "train")).stdout
-	return s
+	skidOnce.Do(func() {
+		root, err := os.MkdirTemp("", "auscult-skid-")
+		if err != nil {
+			skidErr = err.Error()
+			return
+		}
+		sharedRoot = root
+		dir := filepath.Join(root, "obrinvale")
+		r := cli(t, "simulate", "--out", dir, "--seed", "3", "--train", "30", "--test-normal", "6",
+			"--per-fault", "1", "--seconds", "10")
+		if r.code != 0 {
+			skidErr = r.stderr
+			return
+		}
+		s := skid{dir: dir, baseline: filepath.Join(root, "p-pump.bl")}
+		r = cli(t, "enroll", "--out", s.baseline, "--asset", "P-492B", filepath.Join(dir, "train"))
+		if r.code != 0 {
+			skidErr = r.stderr
+			return
+		}
+		s.enroll = r.stdout
+		shared = s
+	})
+	if skidErr != "" {
+		t.Fatalf("making the shared simulated skid: %s", skidErr)
+	}
+	return shared
 }
+
+var (
+	skidOnce   sync.Once
+	shared     skid
+	sharedRoot string // removed by TestMain
+	skidErr    string
+)
 
 // writeWAV writes 16-bit mono samples at rate into dir/name with the
 // project's own writer and returns the path.

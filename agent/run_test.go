@@ -113,6 +113,9 @@ func TestMain(m *testing.M) {
 	if binPath != "" {
 		os.RemoveAll(filepath.Dir(binPath))
 	}
+	if sharedRoot != "" {
+		os.RemoveAll(sharedRoot)
+	}
 	os.Exit(code)
 }
 
@@ -203,6 +206,7 @@ func (p *process) log() string {
 // SIGTERM ends a running agent cleanly within a few seconds, with its
 // partial minute flushed and its log's lock released.
 func TestRunStopsOnSIGTERM(t *testing.T) {
+	agentBinary(t) // skips in -short mode, before the slow set-up
 	s := simulateSkid(t)
 	cfg, logPath := writeConfig(t, s.baseline, fmt.Sprintf("  kind: wav\n  path: %s\n  speed: 1", filepath.Join(s.dir, "test")))
 	p := start(t, nil, "run", "--config", cfg)
@@ -236,6 +240,7 @@ func TestRunStopsOnSIGTERM(t *testing.T) {
 // sound, and report the dead microphone as a sensor diagnostic, not as an
 // anomaly.
 func TestRunOnPortAudioDevice(t *testing.T) {
+	agentBinary(t) // skips in -short mode, before the slow set-up
 	s := simulateSkid(t)
 	dir := t.TempDir()
 	infile := filepath.Join(dir, "mic.raw")
@@ -310,6 +315,7 @@ func TestRunOnPortAudioDevice(t *testing.T) {
 // SIGHUP re-reads the config: alarm timings apply at once, a broken file is
 // refused and the agent keeps running, other changes wait for a restart.
 func TestRunReloadsOnSIGHUP(t *testing.T) {
+	agentBinary(t) // skips in -short mode, before the slow set-up
 	s := simulateSkid(t)
 	source := fmt.Sprintf("  kind: wav\n  path: %s\n  speed: 1", filepath.Join(s.dir, "test"))
 	cfg, _ := writeConfig(t, s.baseline, source)

@@ -21,6 +21,7 @@ import (
 // the processing loop stalls (here: stdin stops delivering sound), so
 // systemd would restart a stuck pipeline, not only a dead process.
 func TestWatchdogFollowsTheProcessingLoop(t *testing.T) {
+	agentBinary(t) // skips in -short mode, before the slow set-up
 	s := simulateSkid(t)
 	sock := filepath.Join(t.TempDir(), "notify.sock")
 	conn, err := net.ListenUnixgram("unixgram", &net.UnixAddr{Name: sock, Net: "unixgram"})

@@ -24,15 +24,24 @@ command -v go >/dev/null || { echo "test.sh: Go is not installed (need Go 1.26 o
 # component missing must fail, not skip.
 export CI=true
 
+# quiet runs a command and shows its output only when it fails.
+quiet() {
+  local out
+  if ! out="$("$@" 2>&1)"; then
+    echo "$out"
+    return 1
+  fi
+}
+
 echo "== vet"
 go vet ./...
 echo "== build without cgo"
 CGO_ENABLED=0 go build -o /dev/null ./agent
 echo "== benchmarks compile and run once"
-go test -run '^$' -bench . -benchtime 1x ./... >/dev/null
+quiet go test -run '^$' -bench . -benchtime 1x ./...
 echo "== fuzz the WAV parser briefly"
-go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio >/dev/null
+quiet go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio
 echo "== race detector on the concurrent parts"
-go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor >/dev/null
+quiet go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor
 echo "== tests"
 go test -count=1 ./...
