@@ -17,7 +17,8 @@ const MaxClipBytes = 32 << 20
 // byte for byte as given.
 type Clip struct {
 	// ID is assigned by PutClip: 1 for the first clip of a store, one more
-	// for each clip after it, never reused.
+	// for each clip after it, never reused. A non-zero ID given to PutClip
+	// must come from ReserveClipID and not be stored yet.
 	ID uint64
 	// EventSeq is the event the clip is evidence for; zero for none. A
 	// non-zero value must name a stored event.
@@ -77,8 +78,27 @@ func (s *Store) checkClip(c *Clip) error {
 	return nil
 }
 
-// PutClip validates c and writes it with a new id in its own transaction,
-// synced to disk before PutClip returns.
+// ReserveClipID hands out the next clip id without storing a clip, so an
+// event can name its evidence before the sound after it is recorded.
+func (s *Store) ReserveClipID() (uint64, error) {
+	if err := s.begin(true); err != nil {
+		return 0, err
+	}
+	defer s.life.RUnlock()
+	var id uint64
+	err := s.update(func(tx *bolt.Tx) error {
+		var err error
+		id, err = nextID(tx, metaNextClip)
+		return err
+	})
+	if err != nil {
+		return 0, fmt.Errorf("store: reserve a clip id in %s: %w", s.path, err)
+	}
+	return id, nil
+}
+
+// PutClip validates c and writes it in its own transaction, synced to disk
+// before PutClip returns, under c.ID if it was reserved, else a new id.
 func (s *Store) PutClip(c Clip) (id uint64, err error) {
 	if err := s.checkClip(&c); err != nil {
 		return 0, err
@@ -91,9 +111,16 @@ func (s *Store) PutClip(c Clip) (id uint64, err error) {
 		if c.EventSeq != 0 && tx.Bucket(bucketEvents).Get(u64(c.EventSeq)) == nil {
 			return fmt.Errorf("%w: clip: event %d does not exist", ErrInvalid, c.EventSeq)
 		}
-		n, err := nextID(tx, metaNextClip)
-		if err != nil {
-			return err
+		n := c.ID
+		if n == 0 {
+			var err error
+			if n, err = nextID(tx, metaNextClip); err != nil {
+				return err
+			}
+		} else if next, _ := fromU64(tx.Bucket(bucketMeta).Get(metaNextClip)); n >= next {
+			return fmt.Errorf("%w: clip: id %d was not reserved", ErrInvalid, n)
+		} else if tx.Bucket(bucketClips).Get(u64(n)) != nil {
+			return fmt.Errorf("%w: clip: id %d is already stored", ErrInvalid, n)
 		}
 		v, err := encodeBlob(clipJSON{
 			ID: n, EventSeq: c.EventSeq, StartMs: unixMs(c.Start), SampleRateHz: c.SampleRate,

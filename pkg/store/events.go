@@ -31,6 +31,8 @@ const (
 	MaxAssetLen   = 64
 	MaxMessageLen = 1024
 	MaxValues     = 16
+	MaxLabels     = 8
+	MaxLabelLen   = 128
 )
 
 // Event is one entry of the event log. AppendEvent assigns Seq; the other
@@ -62,6 +64,14 @@ type Event struct {
 	// its unit as a suffix ("rms_dbfs", "freq_hz", "duration_s"). Keys
 	// use a-z, 0-9 and '_'; values are finite.
 	Values map[string]float64
+	// Labels holds further words, at most MaxLabels: the ISA-18.2 state
+	// after an alarm change ("state": "UNACK"), the baseline in force,
+	// who acknowledged. Keys as for Values; values are valid UTF-8 of at
+	// most MaxLabelLen bytes.
+	Labels map[string]string
+	// ClipID is the evidence clip reserved for this event with
+	// ReserveClipID, zero for none. The clip itself is stored later.
+	ClipID uint64
 }
 
 // eventJSON is the stored value of an event; see doc.go.
@@ -75,6 +85,8 @@ type eventJSON struct {
 	Threshold float64            `json:"threshold,omitempty"`
 	Message   string             `json:"message,omitempty"`
 	Values    map[string]float64 `json:"values,omitempty"`
+	Labels    map[string]string  `json:"labels,omitempty"`
+	ClipID    uint64             `json:"clip_id,omitempty"`
 }
 
 func (e *Event) validate() error {
@@ -113,13 +125,25 @@ func (e *Event) validate() error {
 			return err
 		}
 	}
+	if len(e.Labels) > MaxLabels {
+		return fmt.Errorf("%w: event: %d labels, at most %d", ErrInvalid, len(e.Labels), MaxLabels)
+	}
+	for k, v := range e.Labels {
+		if err := checkToken(kind, "labels key", k, 32, "_"); err != nil {
+			return err
+		}
+		if err := checkText(kind, "labels["+k+"]", v, MaxLabelLen); err != nil {
+			return err
+		}
+	}
 	return nil
 }
 
 // AppendEvent validates e, gives it the next sequence number and writes it
 // in its own transaction, synced to disk before AppendEvent returns: an
 // event reported stored survives a crash. The sequence counter is updated
-// in the same transaction.
+// in the same transaction, and so is the outbox when Options.Outbox is
+// enabled: an event is stored and queued for publishing, or neither.
 func (s *Store) AppendEvent(e Event) (seq uint64, err error) {
 	if err := e.validate(); err != nil {
 		return 0, err
@@ -136,6 +160,7 @@ func (s *Store) AppendEvent(e Event) (seq uint64, err error) {
 		v, err := json.Marshal(eventJSON{
 			Seq: n, TimeMs: unixMs(e.Time), Kind: e.Kind, Code: e.Code, Asset: e.Asset,
 			Score: e.Score, Threshold: e.Threshold, Message: e.Message, Values: e.Values,
+			Labels: e.Labels, ClipID: e.ClipID,
 		})
 		if err != nil {
 			return err
@@ -146,11 +171,15 @@ func (s *Store) AppendEvent(e Event) (seq uint64, err error) {
 			return err
 		}
 		seq = n
+		if s.opt.Outbox.Enabled {
+			return s.enqueue(tx, eventClass(e.Kind), e.Time, v)
+		}
 		return nil
 	})
 	if err != nil {
 		return 0, fmt.Errorf("store: append event to %s: %w", s.path, err)
 	}
+	s.notifyQueued()
 	return seq, nil
 }
 
@@ -164,6 +193,7 @@ func decodeEvent(k, v []byte) (Event, error) {
 	return Event{
 		Seq: w.Seq, Time: fromMs(w.TimeMs), Kind: w.Kind, Code: w.Code, Asset: w.Asset,
 		Score: w.Score, Threshold: w.Threshold, Message: w.Message, Values: maps.Clone(w.Values),
+		Labels: maps.Clone(w.Labels), ClipID: w.ClipID,
 	}, nil
 }
 

@@ -103,6 +103,12 @@ func (s *Store) writeBatch(trend []TrendPoint, sums []Summary, now time.Time, ag
 		if err := put(bucketSummaries, unixMs(sums[i].Start), sums[i].encode()); err != nil {
 			return pruneResult{}, err
 		}
+		if s.opt.Outbox.Enabled {
+			if err := s.enqueueSummary(tx, &sums[i]); err != nil {
+				return pruneResult{}, err
+			}
+			changed = true
+		}
 	}
 	res, err := s.prune(tx, now, ageDue)
 	if err != nil {
@@ -115,6 +121,9 @@ func (s *Store) writeBatch(trend []TrendPoint, sums []Summary, now time.Time, ag
 		return pruneResult{}, err
 	}
 	s.commits.Add(1)
+	if len(sums) > 0 {
+		s.notifyQueued()
+	}
 	return res, nil
 }
 

@@ -15,8 +15,15 @@ var (
 	bucketClips     = []byte("clips")
 	bucketBaselines = []byte("baselines")
 	bucketMeta      = []byte("meta")
+	bucketOutbox    = []byte("outbox")
+	bucketCommands  = []byte("commands")
 
-	allBuckets = [][]byte{bucketEvents, bucketTrend, bucketSummaries, bucketClips, bucketBaselines, bucketMeta}
+	allBuckets = [][]byte{bucketEvents, bucketTrend, bucketSummaries, bucketClips, bucketBaselines, bucketMeta,
+		bucketOutbox, bucketCommands}
+
+	// addedInV2 are the buckets schema 2 added; Open creates them in a
+	// schema 1 file it may write.
+	addedInV2 = [][]byte{bucketOutbox, bucketCommands}
 )
 
 // u64 encodes n as 8 big-endian bytes.

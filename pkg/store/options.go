@@ -85,6 +85,10 @@ type Options struct {
 	// DefaultPruneInterval.
 	PruneInterval time.Duration
 
+	// Outbox configures the store-and-forward queue of outgoing messages;
+	// the zero value disables it.
+	Outbox OutboxOptions
+
 	// Now is the clock used for retention ages and prune scheduling. Nil
 	// means time.Now. Record times always come from the records.
 	Now func() time.Time
@@ -129,6 +133,11 @@ func (o Options) withDefaults() (Options, error) {
 	}
 	if o.Now == nil {
 		o.Now = time.Now
+	}
+	if o.Outbox.Enabled {
+		if err := o.Outbox.fill(); err != nil {
+			return o, err
+		}
 	}
 	return o, nil
 }

@@ -1,9 +1,11 @@
 package store
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"os"
+	"slices"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -15,7 +17,7 @@ import (
 
 // SchemaVersion is the layout of buckets, keys and values this build
 // writes. Open refuses files with a higher version.
-const SchemaVersion = 1
+const SchemaVersion = 2
 
 // Keys in the meta bucket; each value is an 8-byte big-endian integer.
 var (
@@ -24,6 +26,7 @@ var (
 	metaNextEvent    = []byte("next_event_seq")
 	metaNextClip     = []byte("next_clip_id")
 	metaNextBaseline = []byte("next_baseline_id")
+	metaNextMessage  = []byte("next_message_seq")
 )
 
 // Store is the agent's local log: one bbolt file. Its methods are safe for
@@ -97,16 +100,24 @@ func Open(path string, opt Options) (*Store, error) {
 		return nil, openError(path, opt, err)
 	}
 	s := &Store{db: db, path: path, opt: opt, pageSize: db.Info().PageSize}
-	fresh := false
+	fresh, old := false, false
 	err = db.View(func(tx *bolt.Tx) error {
 		if first, _ := tx.Cursor().First(); first == nil && !opt.ReadOnly {
 			fresh = true // an empty bbolt file made by hand: adopt it
 			return nil
 		}
-		return checkMeta(path, tx)
+		if err := checkMeta(path, tx); err != nil {
+			return err
+		}
+		v, _ := fromU64(tx.Bucket(bucketMeta).Get(metaSchema))
+		old = v < SchemaVersion
+		return nil
 	})
 	if err == nil && fresh {
 		err = s.update(func(tx *bolt.Tx) error { return initBuckets(tx, path, opt.Now()) })
+	}
+	if err == nil && old && !opt.ReadOnly {
+		err = s.update(upgrade)
 	}
 	if err != nil {
 		db.Close()
@@ -155,11 +166,26 @@ func checkMeta(path string, tx *bolt.Tx) error {
 		return fmt.Errorf("%w: %s has schema %d, this build reads up to %d; use a newer agent", ErrSchema, path, v, SchemaVersion)
 	}
 	for _, name := range allBuckets {
-		if tx.Bucket(name) == nil {
+		if tx.Bucket(name) == nil && (v >= 2 || !slices.ContainsFunc(addedInV2, func(b []byte) bool { return bytes.Equal(b, name) })) {
 			return fmt.Errorf("%w: %s: bucket %q is missing", ErrCorrupt, path, name)
 		}
 	}
 	return nil
+}
+
+// upgrade brings a schema 1 file to schema 2: the outbox and commands
+// buckets and the message counter. It does nothing to a current file.
+func upgrade(tx *bolt.Tx) error {
+	m := tx.Bucket(bucketMeta)
+	for _, name := range addedInV2 {
+		if _, err := tx.CreateBucketIfNotExists(name); err != nil {
+			return err
+		}
+	}
+	if err := m.Put(metaNextMessage, u64(1)); err != nil {
+		return err
+	}
+	return m.Put(metaSchema, u64(SchemaVersion))
 }
 
 // initBuckets creates the buckets and meta keys of a new file.
@@ -179,6 +205,7 @@ func initBuckets(tx *bolt.Tx, path string, now time.Time) error {
 		{metaNextEvent, 1},
 		{metaNextClip, 1},
 		{metaNextBaseline, 1},
+		{metaNextMessage, 1},
 	} {
 		if err := m.Put(kv.k, u64(kv.v)); err != nil {
 			return err

@@ -3,6 +3,7 @@ package store
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -106,7 +107,7 @@ func TestOpenRefuses(t *testing.T) {
 		{"another program's bbolt file", foreign, testOptions(), ErrNotStore, `"recipes"`},
 		{"another program's bbolt file read-only", foreign, Options{ReadOnly: true}, ErrNotStore, `no "meta" bucket`},
 		{"bbolt file without buckets read-only", write("blank.db", nil), Options{ReadOnly: true}, ErrNotStore, "not a bbolt file"},
-		{"newer schema", newer, testOptions(), ErrSchema, "schema 2"},
+		{"newer schema", newer, testOptions(), ErrSchema, fmt.Sprintf("schema %d", SchemaVersion+1)},
 		{"cap below minimum", filepath.Join(dir, "a.db"), Options{MaxBytes: 1000}, ErrOptions, "MaxBytes 1000"},
 		{"negative prune interval", filepath.Join(dir, "b.db"), Options{PruneInterval: -time.Second}, ErrOptions, "PruneInterval"},
 		{"read-only missing file", filepath.Join(dir, "missing.db"), Options{ReadOnly: true}, os.ErrNotExist, "missing.db"},

@@ -29,15 +29,26 @@ type Summary struct {
 	AlarmSeconds float64
 	// Alarms is the number of alarms raised in the hour.
 	Alarms int
+	// Warnings is the number of warnings raised in the hour.
+	Warnings int
 	// Overruns is the number of capture gaps (input overflows) in the hour.
 	Overruns int
+	// SensorFaults is how many microphone faults became active in the
+	// hour, and SensorActive the faults active at its end, one bit per
+	// fault (the gate package's numbering, bit 0 for its first fault).
+	SensorFaults int
+	SensorActive uint32
 	// Alarm is the most severe state the agent reports for the hour.
 	Alarm AlarmState
 }
 
+// Stored summary layouts: version 1 (80 bytes) lacks the warning and
+// sensor counts, which read as zero.
 const (
-	summaryVersion = 1
-	summaryLen     = 80
+	summaryVersion   = 2
+	summaryLen       = 92
+	summaryV1Len     = 80
+	summaryV1Version = 1
 )
 
 func (m *Summary) validate() error {
@@ -48,7 +59,7 @@ func (m *Summary) validate() error {
 	for _, c := range []struct {
 		name string
 		v    int
-	}{{"windows", m.Windows}, {"alarms", m.Alarms}, {"overruns", m.Overruns}} {
+	}{{"windows", m.Windows}, {"alarms", m.Alarms}, {"warnings", m.Warnings}, {"overruns", m.Overruns}, {"sensor_faults", m.SensorFaults}} {
 		if c.v < 0 || int64(c.v) > math.MaxInt32 {
 			return fmt.Errorf("%w: summary %s: %s %d out of range", ErrInvalid, m.Start.UTC().Format(time.RFC3339), c.name, c.v)
 		}
@@ -93,12 +104,16 @@ func (m *Summary) encode() []byte {
 	for i, f := range m.floats() {
 		le.PutUint64(b[16+8*i:], math.Float64bits(f))
 	}
+	le.PutUint32(b[80:], uint32(m.Warnings))
+	le.PutUint32(b[84:], uint32(m.SensorFaults))
+	le.PutUint32(b[88:], m.SensorActive)
 	return b
 }
 
 func decodeSummary(k, v []byte) (Summary, error) {
 	ms, ok := fromU64(k)
-	if !ok || len(v) != summaryLen || v[0] != summaryVersion {
+	v1 := len(v) == summaryV1Len && len(v) > 0 && v[0] == summaryV1Version
+	if !ok || !v1 && (len(v) != summaryLen || v[0] != summaryVersion) {
 		return Summary{}, fmt.Errorf("%w: summaries key %x: %d-byte value is not a version %d summary", ErrCorrupt, k, len(v), summaryVersion)
 	}
 	le := binary.LittleEndian
@@ -107,6 +122,9 @@ func decodeSummary(k, v []byte) (Summary, error) {
 		Start: fromMs(ms), Windows: int(le.Uint32(v[4:])), Alarms: int(le.Uint32(v[8:])), Overruns: int(le.Uint32(v[12:])),
 		RunningFraction: f(0), ScoreMin: f(1), ScoreMean: f(2), ScoreP95: f(3), ScoreMax: f(4),
 		RMSMeanDBFS: f(5), RMSMaxDBFS: f(6), AlarmSeconds: f(7), Alarm: AlarmState(v[1]),
+	}
+	if !v1 {
+		m.Warnings, m.SensorFaults, m.SensorActive = int(le.Uint32(v[80:])), int(le.Uint32(v[84:])), le.Uint32(v[88:])
 	}
 	if err := m.validate(); err != nil {
 		return Summary{}, fmt.Errorf("%w: summaries key %x: %v", ErrCorrupt, k, err)
