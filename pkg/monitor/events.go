@@ -58,10 +58,41 @@ func (m *Monitor) alarmEvent(e alarm.Event) {
 		fmt.Fprintf(&msg, " by %s until %s: %s", e.By, e.Until.UTC().Format(time.RFC3339), e.Reason)
 		v["shelved_s"] = e.Until.Sub(e.Time).Seconds()
 	}
+	labels := map[string]string{"change": e.Kind.String(), "state": e.State.String(),
+		"severity": e.Severity.String(), "machine": m.machine.State().String()}
+	if id := m.cfg.Baseline.ID; id != "" {
+		labels["baseline"] = id
+	}
+	if e.From != alarm.SeverityNone {
+		labels["from_severity"] = e.From.String()
+	}
+	if e.By != "" {
+		labels["by"] = e.By
+	}
+	if e.Reason != "" {
+		labels["reason"] = e.Reason
+	}
+	clip := uint64(0)
+	wantClip := e.Kind == alarm.Raised || escalated
+	if wantClip && m.evidence.room() {
+		id, err := m.sink.ReserveClipID()
+		if err != nil {
+			m.fail(err)
+		}
+		clip = id
+	}
 	seq := m.append(store.Event{Time: e.Time, Kind: store.EventAlarm, Code: subject + "." + e.Kind.String(),
-		Asset: m.cfg.Asset, Score: finite(e.Score), Threshold: e.Threshold, Message: msg.String(), Values: v})
-	if seq > 0 && (e.Kind == alarm.Raised || escalated) && !m.evidence.trigger(seq) {
+		Asset: m.cfg.Asset, Score: finite(e.Score), Threshold: e.Threshold, Message: msg.String(), Values: v,
+		Labels: labels, ClipID: clip})
+	if seq > 0 && wantClip && (clip == 0 || !m.evidence.trigger(seq, clip)) {
 		m.cfg.Logger.Warn("evidence clip skipped: too many being collected", "event_seq", seq)
+	}
+	if seq > 0 && wantClip {
+		if e.Severity == alarm.SeverityAlarm {
+			m.summary.alarms++
+		} else {
+			m.summary.warnings++
+		}
 	}
 }
 
@@ -95,6 +126,9 @@ func (m *Monitor) sensorEvent(e gate.SensorEvent) {
 	if e.Active {
 		state = "active"
 	}
+	if e.Active {
+		m.summary.sensorFaults++
+	}
 	m.append(store.Event{Time: m.cfg.Clock(e.SamplePos), Kind: store.EventDiagnostic,
 		Code: "sensor." + e.Kind.String() + "." + state, Asset: m.cfg.Asset,
 		Message: fmt.Sprintf("microphone %s %s: measured %.4g, limit %.4g", e.Kind, state, e.Value, e.Limit),
@@ -125,9 +159,6 @@ func (m *Monitor) append(e store.Event) uint64 {
 		return 0
 	}
 	m.cfg.Logger.Info(e.Message, "event", e.Code, "seq", seq, "score", e.Score)
-	if e.Kind == store.EventAlarm && strings.HasSuffix(e.Code, ".raised") {
-		m.summary.alarms++
-	}
 	return seq
 }
 
@@ -136,7 +167,7 @@ func (m *Monitor) saveClip(c pendingClip) {
 	if len(c.samples) == 0 {
 		return
 	}
-	id, err := m.sink.PutClip(store.Clip{EventSeq: c.eventSeq, Start: m.cfg.Clock(c.start).UTC(),
+	id, err := m.sink.PutClip(store.Clip{ID: c.clipID, EventSeq: c.eventSeq, Start: m.cfg.Clock(c.start).UTC(),
 		Asset: m.cfg.Asset, WAV: audio.EncodeWAV(m.rate, c.samples)})
 	m.fail(err)
 	m.cfg.Logger.Info("evidence clip stored", "clip", id, "event_seq", c.eventSeq,

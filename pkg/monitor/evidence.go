@@ -14,6 +14,7 @@ type evidence struct {
 
 type pendingClip struct {
 	eventSeq uint64
+	clipID   uint64 // reserved id, 0 for a new one
 	start    int64 // stream position of samples[0]
 	samples  []int16
 	want     int
@@ -55,10 +56,14 @@ func (e *evidence) push(block []int16, done []pendingClip) []pendingClip {
 	return done
 }
 
+// room reports whether another clip can be collected now.
+func (e *evidence) room() bool { return len(e.pending) < cap(e.pending) }
+
 // trigger starts a clip holding the sound already kept and the next `after`
-// samples. It reports false when too many clips are already being collected.
-func (e *evidence) trigger(eventSeq uint64) bool {
-	if len(e.pending) == cap(e.pending) {
+// samples, to be stored under clipID (0: a new id). It reports false when
+// too many clips are already being collected.
+func (e *evidence) trigger(eventSeq, clipID uint64) bool {
+	if !e.room() {
 		return false
 	}
 	want := e.filled + e.after
@@ -66,7 +71,7 @@ func (e *evidence) trigger(eventSeq uint64) bool {
 	tail := (e.head - e.filled + len(e.past)) % len(e.past)
 	n := copy(s, e.past[tail:min(tail+e.filled, len(e.past))])
 	copy(s[n:], e.past[:e.filled-n])
-	e.pending = append(e.pending, pendingClip{eventSeq: eventSeq, start: e.pos - int64(e.filled), samples: s, want: want})
+	e.pending = append(e.pending, pendingClip{eventSeq: eventSeq, clipID: clipID, start: e.pos - int64(e.filled), samples: s, want: want})
 	return true
 }
 

@@ -14,7 +14,7 @@ func TestEvidenceClipHoldsSoundAroundTheTrigger(t *testing.T) {
 	}
 	done = e.push(ramp(0, 4), done)
 	done = e.push(ramp(4, 4), done) // 8 samples seen; the last 5 are 3..7
-	if !e.trigger(42) {
+	if !e.trigger(42, 0) {
 		t.Fatal("trigger refused")
 	}
 	done = e.push(ramp(8, 2), done)
@@ -37,7 +37,7 @@ func TestEvidenceClipHoldsSoundAroundTheTrigger(t *testing.T) {
 	// Before the ring has filled, the clip starts at the stream's start.
 	e2 := newEvidence(100, 0)
 	e2.push(ramp(0, 10), nil)
-	e2.trigger(1)
+	e2.trigger(1, 0)
 	if got := e2.push(nil, nil); len(got) != 1 || len(got[0].samples) != 10 || got[0].start != 0 {
 		t.Fatalf("short clip %+v", got)
 	}

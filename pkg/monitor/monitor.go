@@ -148,6 +148,17 @@ func (m *Monitor) window(w *embed.Window, score float64) error {
 	return m.err
 }
 
+// sensorMask has a bit set for each sensor diagnostic now active.
+func (m *Monitor) sensorMask() uint32 {
+	var mask uint32
+	for k := gate.Kind(0); k < gate.NumKinds; k++ {
+		if m.sensor.Active(k) {
+			mask |= 1 << k
+		}
+	}
+	return mask
+}
+
 func (m *Monitor) lowestThreshold() float64 {
 	if t := m.cfg.Alarm.WarnThreshold; t > 0 {
 		return t
@@ -167,6 +178,7 @@ func (m *Monitor) account(now time.Time, score, level float64, running bool) {
 	}
 	if start := floorTo(now, m.cfg.SummaryPeriod); !start.Equal(m.summary.start) {
 		if m.summary.windows > 0 {
+			m.summary.sensorActive = m.sensorMask()
 			m.fail(m.sink.AddSummary(m.summary.summary()))
 		}
 		m.summary.reset(start, state)
@@ -190,6 +202,7 @@ func (m *Monitor) finish() {
 		m.minute.windows = 0
 	}
 	if m.summary.windows > 0 {
+		m.summary.sensorActive = m.sensorMask()
 		m.fail(m.sink.AddSummary(m.summary.summary()))
 		m.summary.windows = 0
 	}

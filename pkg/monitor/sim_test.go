@@ -179,8 +179,12 @@ func TestHealthyFaultStopped(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(clips) != 1 || clips[0].EventSeq != r.Seq || clips[0].Duration < 19*time.Second {
-		t.Errorf("clips %+v, want one of about 20 s for event %d", clips, r.Seq)
+	if len(clips) != 1 || clips[0].EventSeq != r.Seq || clips[0].Duration < 19*time.Second || clips[0].ID != r.ClipID {
+		t.Errorf("clips %+v, want one of about 20 s for event %d under the id it names, %d", clips, r.Seq, r.ClipID)
+	}
+	if r.Labels["state"] != "UNACK" || r.Labels["severity"] != "alarm" || r.Labels["machine"] != "running" ||
+		r.Labels["change"] != "raised" {
+		t.Errorf("raise labels %v", r.Labels)
 	}
 	trend, err := st.Trend(store.Range{})
 	if err != nil {

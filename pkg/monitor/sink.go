@@ -10,6 +10,9 @@ type Sink interface {
 	AddTrend(p store.TrendPoint) error
 	AddSummary(s store.Summary) error
 	PutClip(c store.Clip) (id uint64, err error)
+	// ReserveClipID hands out the id the evidence clip of a raise will be
+	// stored under, so the raise can name it before the clip is complete.
+	ReserveClipID() (uint64, error)
 }
 
 var _ Sink = (*store.Store)(nil)

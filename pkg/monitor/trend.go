@@ -25,6 +25,9 @@ type period struct {
 	worst            store.AlarmState
 	scores           []float64 // summary periods only: for the 95th percentile
 	alarms, overruns int
+	warnings         int
+	sensorFaults     int    // sensor diagnostics that became active
+	sensorActive     uint32 // bit per gate.Kind active at the period's end
 	alarmTime        time.Duration
 }
 
@@ -87,7 +90,8 @@ func (p *period) summary() store.Summary {
 	}
 	return store.Summary{Start: p.start, Windows: p.running, RunningFraction: p.runningFraction(),
 		ScoreMin: lo, ScoreMean: mean, ScoreP95: p95, ScoreMax: hi, RMSMeanDBFS: lm, RMSMaxDBFS: lx,
-		AlarmSeconds: p.alarmTime.Seconds(), Alarms: p.alarms, Overruns: p.overruns, Alarm: p.worst}
+		AlarmSeconds: p.alarmTime.Seconds(), Alarms: p.alarms, Warnings: p.warnings, Overruns: p.overruns,
+		SensorFaults: p.sensorFaults, SensorActive: p.sensorActive, Alarm: p.worst}
 }
 
 func (p *period) runningFraction() float64 {
