@@ -2,31 +2,47 @@ package main
 
 import (
 	"fmt"
-	"os"
-	"time"
 
-	mqtt "github.com/eclipse/paho.mqtt.golang"
+	"github.com/auscult/auscult/pkg/config"
+	"github.com/auscult/auscult/pkg/publish"
 )
 
-// brokerTimeout bounds the broker link check.
-const brokerTimeout = 5 * time.Second
+// brokerLine is one broker's line in `auscult check`.
+type brokerLine struct {
+	text string
+	ok   bool
+}
 
-// checkBroker connects to the broker at url with a throw-away client id and
-// disconnects: the link check of `auscult check`.
-func checkBroker(url string) (string, error) {
-	host, _ := os.Hostname()
-	opts := mqtt.NewClientOptions().AddBroker(url).SetClientID(fmt.Sprintf("auscult-check-%s-%d", host, os.Getpid())).
-		SetConnectTimeout(brokerTimeout).SetAutoReconnect(false).SetConnectRetry(false).SetCleanSession(true)
-	c := mqtt.NewClient(opts)
-	start := time.Now()
-	tok := c.Connect()
-	if !tok.WaitTimeout(brokerTimeout + time.Second) {
-		return "", fmt.Errorf("%s: no answer within %v", url, brokerTimeout)
+// checkBroker connects to each configured broker with the configured
+// credentials and TLS and disconnects: the link check of `auscult check`.
+// One broker of a fail-over list that answers is enough to pass, since the
+// agent then has a path for its messages; each line says how each did.
+func checkBroker(cfg config.Config) ([]brokerLine, error) {
+	pw, err := brokerPassword(cfg.MQTT)
+	if err != nil {
+		return nil, err
 	}
-	if err := tok.Error(); err != nil {
-		return "", fmt.Errorf("%s: %w", url, err)
+	m := cfg.MQTT
+	res, err := publish.Probe(publish.Config{URLs: m.Brokers(), ClientID: m.ClientID, Username: m.Username, Password: pw,
+		TLS:  publish.TLSFiles{CAFile: m.TLS.CAFile, CertFile: m.TLS.CertFile, KeyFile: m.TLS.KeyFile, ServerName: m.TLS.ServerName},
+		Site: "check", Asset: cfg.Asset, ConnectTimeout: seconds(m.ConnectTimeoutS)})
+	if err != nil {
+		return nil, err
 	}
-	took := time.Since(start)
-	c.Disconnect(100)
-	return fmt.Sprintf("%s: connected in %d ms", url, took.Milliseconds()), nil
+	var out []brokerLine
+	anyOK := false
+	for _, r := range res {
+		if r.Err != nil {
+			out = append(out, brokerLine{text: fmt.Sprintf("%s: FAIL %v", r.URL, r.Err)})
+			continue
+		}
+		anyOK = true
+		out = append(out, brokerLine{text: fmt.Sprintf("%s: connected in %d ms", r.URL, r.Took.Milliseconds()), ok: true})
+	}
+	if anyOK {
+		for i := range out {
+			out[i].ok = true
+		}
+	}
+	return out, nil
 }

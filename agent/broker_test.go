@@ -9,6 +9,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"github.com/auscult/auscult/pkg/config"
 )
 
 // startBroker runs Mosquitto (Debian's mosquitto package) on a free loopback
@@ -61,15 +63,25 @@ func startBroker(t *testing.T) string {
 // nothing listens.
 func TestCheckBrokerLink(t *testing.T) {
 	url := startBroker(t)
-	line, err := checkBroker(url)
-	if err != nil || !strings.Contains(line, "connected in") {
-		t.Fatalf("broker %s: %q, %v", url, line, err)
+	cfg := config.Default()
+	cfg.Asset, cfg.MQTT.URL = "P-492B", url
+	lines, err := checkBroker(cfg)
+	if err != nil || len(lines) != 1 || !lines[0].ok || !strings.Contains(lines[0].text, "connected in") {
+		t.Fatalf("broker %s: %+v, %v", url, lines, err)
 	}
 	l, _ := net.Listen("tcp", "127.0.0.1:0")
 	dead := "tcp://" + l.Addr().String()
 	l.Close()
-	if _, err := checkBroker(dead); err == nil || !strings.Contains(err.Error(), dead) {
-		t.Errorf("a dead broker gave %v, want an error naming %s", err, dead)
+	cfg.MQTT.URL = dead
+	lines, err = checkBroker(cfg)
+	if err != nil || len(lines) != 1 || lines[0].ok || !strings.Contains(lines[0].text, dead+": FAIL") {
+		t.Errorf("a dead broker gave %+v, %v; want a failed line naming %s", lines, err, dead)
+	}
+	// Fail-over: one live broker of two passes, and both are reported.
+	cfg.MQTT.URL, cfg.MQTT.URLs = dead, []string{url}
+	lines, _ = checkBroker(cfg)
+	if len(lines) != 2 || !lines[0].ok || !strings.Contains(lines[1].text, "connected in") {
+		t.Errorf("fail-over pair gave %+v", lines)
 	}
 }
 

@@ -60,13 +60,20 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	} else {
 		fmt.Fprintf(stdout, "microphone  %s\n", line)
 	}
-	if cfg.MQTT.URL == "" {
+	if len(cfg.MQTT.Brokers()) == 0 {
 		fmt.Fprintln(stdout, "broker      none configured (mqtt.url): alarms stay in the local log")
-	} else if line, err := checkBroker(cfg.MQTT.URL); err != nil {
+	} else if lines, err := checkBroker(cfg); err != nil {
 		fmt.Fprintf(stdout, "broker      FAIL %v\n", err)
 		failed = append(failed, "broker")
 	} else {
-		fmt.Fprintf(stdout, "broker      %s\n", line)
+		bad := false
+		for _, l := range lines {
+			fmt.Fprintf(stdout, "broker      %s\n", l.text)
+			bad = bad || !l.ok
+		}
+		if bad {
+			failed = append(failed, "broker")
+		}
 	}
 	if len(failed) > 0 {
 		return fmt.Errorf("%d check(s) failed: %v", len(failed), failed)

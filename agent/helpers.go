@@ -4,6 +4,7 @@ import (
 	"context"
 	"log/slog"
 	"os"
+	"reflect"
 	"runtime"
 	"strings"
 	"sync"
@@ -119,14 +120,15 @@ func reload(old config.Config, path string, mon *monitor.Monitor, log *slog.Logg
 		name string
 		same bool
 	}{{"site", cfg.Site == old.Site}, {"asset", cfg.Asset == old.Asset}, {"baseline", cfg.Baseline == old.Baseline},
-		{"alarm.debounce", applied.Alarm == cfg.Alarm}, {"evidence", cfg.Evidence == old.Evidence}, {"log", cfg.Log == old.Log}} {
+		{"alarm.debounce", applied.Alarm == cfg.Alarm}, {"evidence", cfg.Evidence == old.Evidence}, {"log", cfg.Log == old.Log},
+		{"mqtt", reflect.DeepEqual(cfg.MQTT, old.MQTT)}} {
 		if !c.same {
 			later = append(later, c.name)
 		}
 	}
 	if len(later) > 0 {
 		log.Warn("config reload: these changes take effect at the next restart", "changed", strings.Join(later, ","))
-	} else if applied == old {
+	} else if reflect.DeepEqual(applied, old) {
 		log.Info("config reload: no changes")
 	}
 	return applied

@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"os/signal"
+	"sync/atomic"
 	"syscall"
 	"time"
 
@@ -18,6 +19,7 @@ import (
 	"github.com/auscult/auscult/pkg/config"
 	"github.com/auscult/auscult/pkg/enrol"
 	"github.com/auscult/auscult/pkg/monitor"
+	"github.com/auscult/auscult/pkg/publish"
 	"github.com/auscult/auscult/pkg/store"
 )
 
@@ -89,7 +91,12 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 	if err != nil {
 		return err
 	}
-	st, err := openLog(cfg.Log, false)
+	var pubRef atomic.Pointer[publish.Publisher]
+	st, err := openLog(cfg.Log, false, outboxOptions(cfg.MQTT, func() {
+		if p := pubRef.Load(); p != nil {
+			p.Notify()
+		}
+	}))
 	if err != nil {
 		return err
 	}
@@ -124,6 +131,11 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 		src.closeFn(context.Background())
 		return err
 	}
+	lk, err := startLink(cfg, cfgPath, b, st, mon, &pubRef, log)
+	if err != nil {
+		src.closeFn(context.Background())
+		return err
+	}
 
 	ctx, stop := signal.NotifyContext(context.Background(), syscall.SIGTERM, syscall.SIGINT)
 	defer stop()
@@ -146,6 +158,7 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 	}
 	close(done)
 	helpers.Wait()
+	lk.stop(log)
 	logFigures(mon, log, "stopped", "reason", stopReason(ctx, runErr))
 	return runErr
 }
@@ -163,9 +176,9 @@ func stopReason(ctx context.Context, err error) string {
 func seconds(s float64) time.Duration { return time.Duration(s * float64(time.Second)) }
 
 // openLog opens the local log with the configured limits.
-func openLog(l config.Log, readOnly bool) (*store.Store, error) {
+func openLog(l config.Log, readOnly bool, outbox store.OutboxOptions) (*store.Store, error) {
 	day := 24 * time.Hour
-	return store.Open(l.Path, store.Options{Timeout: 2 * time.Second, ReadOnly: readOnly,
+	return store.Open(l.Path, store.Options{Timeout: 2 * time.Second, ReadOnly: readOnly, Outbox: outbox,
 		MaxBytes: int64(l.MaxMB * (1 << 20)), FlushInterval: seconds(l.FlushS),
 		MaxAge: store.Ages{Events: time.Duration(l.EventDays) * day, Trend: time.Duration(l.TrendDays) * day,
 			Summaries: time.Duration(l.TrendDays) * day, Clips: time.Duration(l.ClipDays) * day}})

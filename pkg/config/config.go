@@ -17,10 +17,66 @@ type Config struct {
 	MQTT     MQTT     `yaml:"mqtt"`
 }
 
-// MQTT names the plant's broker. Empty URL: no broker (the local log only).
+// MQTT names the plant's broker. No URL: no broker (the local log only).
 type MQTT struct {
 	// URL is the broker, e.g. tcp://10.20.0.5:1883 or ssl://broker.site:8883.
 	URL string `yaml:"url"`
+	// URLs lists several brokers instead, tried in order (fail-over).
+	URLs []string `yaml:"urls"`
+	// ClientID is the MQTT client id (default auscult-<host>-<asset>);
+	// keep it stable across restarts.
+	ClientID string `yaml:"client_id"`
+	// Username, with the password read from PasswordFile (first line) or
+	// the environment variable PasswordEnv; never written in this file.
+	Username     string `yaml:"username"`
+	PasswordFile string `yaml:"password_file"`
+	PasswordEnv  string `yaml:"password_env"`
+	// TLS for ssl://, tls:// and wss:// brokers.
+	TLS TLS `yaml:"tls"`
+	// TopicPrefix starts every topic: <prefix>/<site>/<asset>/<kind>
+	// (default auscult).
+	TopicPrefix string `yaml:"topic_prefix"`
+	// KeepAliveS and ConnectTimeoutS in seconds (defaults 30 and 10).
+	KeepAliveS      float64 `yaml:"keepalive_s"`
+	ConnectTimeoutS float64 `yaml:"connect_timeout_s"`
+	// ReconnectMinS and ReconnectMaxS bound the reconnect back-off, in
+	// seconds (defaults 1 and 120).
+	ReconnectMinS float64 `yaml:"reconnect_min_s"`
+	ReconnectMaxS float64 `yaml:"reconnect_max_s"`
+	// StatusMin is how often the retained status is refreshed, in minutes
+	// (default 15).
+	StatusMin float64 `yaml:"status_min"`
+	// Commands accepts operator commands from the broker (default true).
+	Commands bool `yaml:"commands"`
+	// CommandMaxAgeS refuses commands issued longer ago than this, in
+	// seconds (default 600); 0 turns the check off.
+	CommandMaxAgeS float64 `yaml:"command_max_age_s"`
+	// OutboxMB and OutboxDays bound the messages kept while the broker is
+	// away (defaults 8 MiB and 30 days); summaries are dropped first.
+	OutboxMB   float64 `yaml:"outbox_mb"`
+	OutboxDays float64 `yaml:"outbox_days"`
+}
+
+// TLS names the PEM files of a TLS connection to the broker.
+type TLS struct {
+	// CAFile is the authority that signed the broker's certificate
+	// (default: the system's).
+	CAFile string `yaml:"ca_file"`
+	// CertFile and KeyFile are this agent's client certificate and key.
+	CertFile string `yaml:"cert_file"`
+	KeyFile  string `yaml:"key_file"`
+	// ServerName is the name checked in the broker's certificate when it
+	// differs from the URL's host.
+	ServerName string `yaml:"server_name"`
+}
+
+// Brokers returns the configured broker URLs, URL first.
+func (m MQTT) Brokers() []string {
+	var out []string
+	if m.URL != "" {
+		out = append(out, m.URL)
+	}
+	return append(out, m.URLs...)
 }
 
 // Source kinds.
@@ -106,5 +162,7 @@ func Default() Config {
 		Evidence: Evidence{BeforeS: 10, AfterS: 10},
 		Log: Log{Path: "/var/lib/auscult/auscult.db", MaxMB: 256, FlushS: 10,
 			TrendDays: 400, ClipDays: 90, EventDays: 1000, SummaryMin: 60},
+		MQTT: MQTT{TopicPrefix: "auscult", KeepAliveS: 30, ConnectTimeoutS: 10, ReconnectMinS: 1, ReconnectMaxS: 120,
+			StatusMin: 15, Commands: true, CommandMaxAgeS: 600, OutboxMB: 8, OutboxDays: 30},
 	}
 }

@@ -51,6 +51,10 @@ func (p *parser) fail(line int, path, format string, a ...any) {
 }
 
 func (p *parser) decode(n *yaml.Node, v reflect.Value, path string) {
+	if v.Kind() == reflect.Slice {
+		p.list(n, v, path)
+		return
+	}
 	if v.Kind() != reflect.Struct {
 		p.scalar(n, v, path)
 		return
@@ -82,6 +86,19 @@ func (p *parser) decode(n *yaml.Node, v reflect.Value, path string) {
 			p.decode(val, v.Field(idx), kp)
 		}
 	}
+}
+
+// list decodes a list of single values, such as broker URLs.
+func (p *parser) list(n *yaml.Node, v reflect.Value, path string) {
+	if n.Kind != yaml.SequenceNode {
+		p.fail(n.Line, path, "must be a list ([a, b] or one '- item' per line), got %s", describe(n))
+		return
+	}
+	out := reflect.MakeSlice(v.Type(), len(n.Content), len(n.Content))
+	for i, item := range n.Content {
+		p.scalar(item, out.Index(i), fmt.Sprintf("%s[%d]", path, i))
+	}
+	v.Set(out)
 }
 
 func (p *parser) scalar(n *yaml.Node, v reflect.Value, path string) {

@@ -91,11 +91,56 @@ func (c Config) validate(file string, lines map[string]int) []error {
 	if l.SummaryMin < 1 || l.SummaryMin > 1440 || 1440%l.SummaryMin != 0 {
 		bad("log.summary_min", "must divide a day (e.g. 15, 60, 1440 minutes), got %d", l.SummaryMin)
 	}
-	if u := c.MQTT.URL; u != "" {
+	errs = append(errs, c.MQTT.validate(file, lines)...)
+	return errs
+}
+
+// validate checks the mqtt section.
+func (m MQTT) validate(file string, lines map[string]int) []error {
+	var errs []error
+	bad := func(path, format string, a ...any) {
+		errs = append(errs, &FieldError{File: file, Line: lines[path], Path: path, Msg: fmt.Sprintf(format, a...)})
+	}
+	checkURL := func(path, u string) {
 		scheme, rest, ok := strings.Cut(u, "://")
 		if !ok || rest == "" || !slices.Contains([]string{"tcp", "ssl", "tls", "ws", "wss", "mqtt", "mqtts"}, scheme) {
-			bad("mqtt.url", "%q: want SCHEME://HOST:PORT with scheme tcp, ssl, tls, ws, wss, mqtt or mqtts", u)
+			bad(path, "%q: want SCHEME://HOST:PORT with scheme tcp, ssl, tls, ws, wss, mqtt or mqtts", u)
 		}
+	}
+	if m.URL != "" {
+		checkURL("mqtt.url", m.URL)
+	}
+	for i, u := range m.URLs {
+		checkURL(fmt.Sprintf("mqtt.urls[%d]", i), u)
+	}
+	if m.PasswordFile != "" && m.PasswordEnv != "" {
+		bad("mqtt.password_file", "set password_file or password_env, not both")
+	}
+	if (m.PasswordFile != "" || m.PasswordEnv != "") && m.Username == "" {
+		bad("mqtt.username", "is required with a password")
+	}
+	if (m.TLS.CertFile == "") != (m.TLS.KeyFile == "") {
+		bad("mqtt.tls.cert_file", "cert_file and key_file go together")
+	}
+	if p := m.TopicPrefix; p == "" || strings.ContainsAny(p, "+#") || strings.HasPrefix(p, "/") || strings.HasSuffix(p, "/") {
+		bad("mqtt.topic_prefix", "%q: want a non-empty topic path without '+', '#' or a leading or trailing '/'", p)
+	}
+	for _, r := range []struct {
+		path   string
+		v      float64
+		lo, hi float64
+	}{
+		{"mqtt.keepalive_s", m.KeepAliveS, 5, 3600}, {"mqtt.connect_timeout_s", m.ConnectTimeoutS, 1, 300},
+		{"mqtt.reconnect_min_s", m.ReconnectMinS, 0.1, 3600}, {"mqtt.reconnect_max_s", m.ReconnectMaxS, 0.1, 86400},
+		{"mqtt.status_min", m.StatusMin, 0.1, 1440}, {"mqtt.command_max_age_s", m.CommandMaxAgeS, 0, 86400},
+		{"mqtt.outbox_mb", m.OutboxMB, 0.0625, 4096}, {"mqtt.outbox_days", m.OutboxDays, 0.01, 3650},
+	} {
+		if r.v < r.lo || r.v > r.hi {
+			bad(r.path, "must be between %g and %g, got %g", r.lo, r.hi, r.v)
+		}
+	}
+	if m.ReconnectMaxS < m.ReconnectMinS {
+		bad("mqtt.reconnect_max_s", "must not be below reconnect_min_s (%g), got %g", m.ReconnectMinS, m.ReconnectMaxS)
 	}
 	return errs
 }

@@ -115,6 +115,9 @@ type Message struct {
 	// Summary and Drops are set on summary messages.
 	Summary *Summary
 	Drops   Drops
+	// Err is set, wrapping ErrCorrupt, when the stored entry cannot be
+	// decoded; the caller should Ack it away (and say so).
+	Err error
 }
 
 // Meta keys of the outbox, each an 8-byte big-endian integer.
@@ -337,8 +340,7 @@ func decodeMessage(k, v []byte) (Message, error) {
 }
 
 // Outbox returns up to max queued messages with Seq > after, oldest first.
-// A corrupt entry is returned as an error naming its key; the caller may
-// Ack it away.
+// A corrupt entry comes back with only Seq and Err set.
 func (s *Store) Outbox(after uint64, max int) ([]Message, error) {
 	if err := s.begin(false); err != nil {
 		return nil, err
@@ -354,7 +356,8 @@ func (s *Store) Outbox(after uint64, max int) ([]Message, error) {
 		for k, v := c.Seek(u64(after + 1)); k != nil && len(out) < max; k, v = c.Next() {
 			m, err := decodeMessage(k, v)
 			if err != nil {
-				return err
+				seq, _ := fromU64(k)
+				m = Message{Seq: seq, Err: err}
 			}
 			out = append(out, m)
 		}
