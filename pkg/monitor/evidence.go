@@ -15,7 +15,7 @@ type evidence struct {
 type pendingClip struct {
 	eventSeq uint64
 	clipID   uint64 // reserved id, 0 for a new one
-	start    int64 // stream position of samples[0]
+	start    int64  // stream position of samples[0]
 	samples  []int16
 	want     int
 }

@@ -296,8 +296,8 @@ func (p *Publisher) statusPayload(state, reason string, live bool) ([]byte, erro
 	i := p.cfg.Info
 	s := Status{Envelope: p.render.envelope(KindStatus, seq, p.cfg.Now()), State: state, Reason: reason,
 		AgentVersion: i.Version, ClientID: p.cfg.ClientID, Started: Stamp(i.Started),
-		Baseline:     StatusBaseline{ID: i.BaselineID, EnrolledS: i.EnrolledFor.Seconds()},
-		Thresholds:   StatusThresholds{Alarm: i.Threshold, Warning: i.WarnThreshold}, ConfigSHA256: i.ConfigSHA256}
+		Baseline:   StatusBaseline{ID: i.BaselineID, EnrolledS: i.EnrolledFor.Seconds()},
+		Thresholds: StatusThresholds{Alarm: i.Threshold, Warning: i.WarnThreshold}, ConfigSHA256: i.ConfigSHA256}
 	if !i.Enrolled.IsZero() {
 		s.Baseline.Enrolled = Stamp(i.Enrolled)
 	}
