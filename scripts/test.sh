@@ -8,7 +8,7 @@ cd "$(dirname "$0")/.."
 # (with libasound2-dev) builds live capture, tested through ALSA's file plugin;
 # systemd brings systemd-analyze, which checks the service unit; mosquitto is the
 # real broker the tests start on a free loopback port.
-packages=(sox portaudio19-dev systemd mosquitto)
+packages=(sox portaudio19-dev systemd mosquitto mosquitto-clients)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
