@@ -7,8 +7,10 @@ require (
 	github.com/eclipse/paho.mqtt.golang v1.5.1
 	github.com/gordonklaus/portaudio v0.0.0-20250206071425-98a94950218b
 	github.com/mjibson/go-dsp v0.0.0-20180508042940-11479a337f12
+	github.com/santhosh-tekuri/jsonschema/v6 v6.0.2
 	go.etcd.io/bbolt v1.4.3
 	go.yaml.in/yaml/v3 v3.0.4
+	golang.org/x/text v0.29.0
 	gonum.org/v1/gonum v0.17.0
 )
 

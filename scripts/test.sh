@@ -7,7 +7,8 @@ cd "$(dirname "$0")/.."
 # Debian packages the tests use: sox writes reference WAV files; portaudio19-dev
 # (with libasound2-dev) builds live capture, tested through ALSA's file plugin;
 # systemd brings systemd-analyze, which checks the service unit; mosquitto is the
-# real broker the tests start on a free loopback port.
+# real broker the tests start on a free loopback port, and mosquitto-clients
+# brings mosquitto_sub, the client we did not write that receives what we publish.
 packages=(sox portaudio19-dev systemd mosquitto mosquitto-clients)
 missing=()
 for p in "${packages[@]}"; do
@@ -41,7 +42,9 @@ echo "== benchmarks compile and run once"
 quiet go test -run '^$' -bench . -benchtime 1x ./...
 echo "== fuzz the WAV parser briefly"
 quiet go test -run '^$' -fuzz FuzzParseWAV -fuzztime 15s ./pkg/audio
+echo "== fuzz the MQTT command parser briefly"
+quiet go test -run '^$' -fuzz FuzzParseCommand -fuzztime 10s ./pkg/publish
 echo "== race detector on the concurrent parts"
-quiet go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor
+quiet go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor ./pkg/publish/...
 echo "== tests"
 go test -count=1 ./...

@@ -64,6 +64,14 @@ func TestParseErrors(t *testing.T) {
 		{"summary not dividing a day", "asset: P-1\nlog:\n  summary_min: 7\n", []string{"log.summary_min: must divide a day"}},
 		{"not yaml", "asset: [\n", []string{"agent.yaml: not valid YAML"}},
 		{"bad broker url", "asset: P-1\nmqtt:\n  url: 10.0.0.5:1883\n", []string{"agent.yaml:3: mqtt.url:", "tcp"}},
+		{"bad url in a fail-over list", "asset: P-1\nmqtt:\n  urls: [tcp://a:1883, b:1883]\n", []string{"mqtt.urls[1]", "b:1883"}},
+		{"urls not a list", "asset: P-1\nmqtt:\n  urls: tcp://a:1883\n", []string{"mqtt.urls: must be a list"}},
+		{"two password sources", "asset: P-1\nmqtt:\n  username: u\n  password_file: /p\n  password_env: P\n", []string{"password_file or password_env"}},
+		{"password without user", "asset: P-1\nmqtt:\n  password_env: P\n", []string{"mqtt.username: is required"}},
+		{"cert without key", "asset: P-1\nmqtt:\n  tls:\n    cert_file: /c\n", []string{"mqtt.tls.cert_file"}},
+		{"wildcard prefix", "asset: P-1\nmqtt:\n  topic_prefix: plant/#\n", []string{"mqtt.topic_prefix"}},
+		{"back-off upside down", "asset: P-1\nmqtt:\n  reconnect_min_s: 60\n  reconnect_max_s: 5\n", []string{"mqtt.reconnect_max_s"}},
+		{"password in the file", "asset: P-1\nmqtt:\n  password: hunter2\n", []string{"mqtt.password: unknown key"}},
 		{"two problems at once", "asset: P-1\nsource:\n  rate_hz: 1\nlog:\n  flush_s: 0\n", []string{"source.rate_hz", "log.flush_s"}},
 	}
 	for _, tc := range cases {

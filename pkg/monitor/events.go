@@ -144,6 +144,9 @@ func (m *Monitor) Diagnostic(now time.Time, code, message string, values map[str
 	if code == "capture.input_overflow" || code == "capture.ring_overrun" {
 		m.summary.overruns++
 	}
+	for k, v := range values {
+		values[k] = finite(v) // the log keeps finite numbers only
+	}
 	m.append(store.Event{Time: now, Kind: store.EventDiagnostic, Code: code, Asset: m.cfg.Asset,
 		Message: message, Values: values})
 }

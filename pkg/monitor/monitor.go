@@ -81,7 +81,8 @@ func New(cfg Config, sink Sink) (*Monitor, error) {
 		bands: make([]baseline.Band, 0, alarm.MaxBands), clips: make([]pendingClip, 0, maxPendingClips)}
 	m.summary.scores = make([]float64, 0, int(cfg.SummaryPeriod.Seconds())+16)
 	m.status = Status{Asset: cfg.Asset, BaselineID: b.ID, Threshold: cfg.Alarm.AlarmThreshold,
-		WarnThreshold: cfg.Alarm.WarnThreshold, Machine: gate.Unknown.String(), Alarm: alarm.StateNormal.String()}
+		WarnThreshold: cfg.Alarm.WarnThreshold, Machine: gate.Unknown.String(), Alarm: alarm.StateNormal.String(),
+		Severity: alarm.SeverityNone.String()}
 	return m, nil
 }
 

@@ -15,7 +15,7 @@
 // Topics are <prefix>/<site>/<asset>/<kind>; payloads are JSON with a
 // schema version, the asset, a per-agent sequence number that only grows
 // and UTC RFC 3339 times with milliseconds. docs/messages.md describes
-// them and docs/schemas holds their JSON Schemas.
+// them and pkg/publish/schema holds their JSON Schemas.
 //
 // Status is retained: "online" on every connect, "offline" as the will
 // (an agent that died) and on a clean stop. A receiver therefore tells a

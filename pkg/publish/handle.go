@@ -65,7 +65,13 @@ func (p *Publisher) command(c mqtt.Client, b []byte) error {
 	if err != nil {
 		return err
 	}
-	r := Response{Envelope: p.render.envelope(KindResponse, seq, now), RequestID: cmd.RequestID, Action: cmd.Action,
+	action := cmd.Action
+	switch action {
+	case ActionAcknowledge, ActionShelve, ActionUnshelve, ActionStatus:
+	default:
+		action = "" // not echoed: it may be anything up to MaxCommandBytes
+	}
+	r := Response{Envelope: p.render.envelope(KindResponse, seq, now), RequestID: cmd.RequestID, Action: action,
 		OK: cerr == nil, Error: cerr, AlarmState: p.op.Live().Alarm}
 	payload, err := json.Marshal(r)
 	if err != nil {

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"net/url"
 	"sync"
@@ -307,7 +308,7 @@ func (p *Publisher) statusPayload(state, reason string, live bool) ([]byte, erro
 		if !l.ShelvedUntil.IsZero() {
 			s.ShelvedUntil = Stamp(l.ShelvedUntil)
 		}
-		if !l.LastWindow.IsZero() {
+		if !l.LastWindow.IsZero() && !math.IsNaN(l.Score) && !math.IsInf(l.Score, 0) {
 			score := l.Score
 			s.Score, s.LastWindow = &score, Stamp(l.LastWindow)
 		}

@@ -40,6 +40,9 @@ type Options struct {
 	// Debian's mosquitto 2.0.11 supports it, but that listener binds every
 	// interface (IPv4 and IPv6) whatever address its listener line names.
 	WebSockets bool
+	// Extra is added to the generated configuration before the listeners
+	// (global settings such as max_queued_messages).
+	Extra string
 }
 
 // Broker is a Mosquitto process started by Start for one test. Its methods
@@ -140,6 +143,9 @@ func (b *Broker) writeConfig() {
 		fmt.Fprintf(&c, "persistence true\npersistence_location %s/\n", b.Dir)
 	} else {
 		c.WriteString("persistence false\n")
+	}
+	if b.opt.Extra != "" {
+		c.WriteString(strings.TrimSpace(b.opt.Extra) + "\n")
 	}
 	for i, port := range b.ports {
 		fmt.Fprintf(&c, "\nlistener %d 127.0.0.1\n", port)
