@@ -305,3 +305,79 @@ func TestRunCrashDuringOutage(t *testing.T) {
 	t.Logf("%d messages queued at the kill; %d events logged across three runs, %d messages at the bridge (%d duplicates)",
 		queued, len(evs), len(c.order), c.dups)
 }
+
+// runTimed runs the agent on sound from stdin as fast as it reads, and
+// returns the wall time from start to exit, the time its analysis took
+// (from its "listening" line to its "analysis ended" line) and the windows
+// it decided.
+func runTimed(t *testing.T, cfgPath string, sound []byte) (total, analysis time.Duration, windows string) {
+	t.Helper()
+	cmd := exec.Command(agentBinary(t), "run", "--config", cfgPath, "--clock", "samples")
+	cmd.Stdin = strings.NewReader(string(sound))
+	var stderr strings.Builder
+	cmd.Stderr = &stderr
+	start := time.Now()
+	done := make(chan error, 1)
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	go func() { done <- cmd.Wait() }()
+	select {
+	case err := <-done:
+		if err != nil {
+			t.Fatalf("agent: %v\n%s", err, stderr.String())
+		}
+	case <-time.After(3 * time.Minute):
+		cmd.Process.Kill()
+		t.Fatalf("agent still running after 3 minutes: publishing blocked the pipeline?\n%s", stderr.String())
+	}
+	total = time.Since(start)
+	var from, to time.Time
+	for _, l := range strings.Split(stderr.String(), "\n") {
+		a := slogAttrs(l)
+		at, _ := time.Parse(time.RFC3339Nano, a["time"])
+		switch a["msg"] {
+		case "listening":
+			from = at
+		case "analysis ended":
+			to, windows = at, a["windows"]
+		}
+	}
+	if from.IsZero() || to.IsZero() {
+		t.Fatalf("no listening or analysis ended line:\n%s", stderr.String())
+	}
+	return total, to.Sub(from), windows
+}
+
+// A broker that hangs (SIGSTOP: connections open, nothing answered) does
+// not slow the audio pipeline: the agent decides every window of the
+// sound, ends, and leaves what it could not send in the outbox.
+func TestRunWithStalledBroker(t *testing.T) {
+	agentBinary(t)
+	s := simulateSkid(t)
+	sound := skidScript(t, 3)
+	plain, plainLog := writeConfig(t, s.baseline, "  kind: stdin")
+	_ = plainLog
+	_, alone, windows := runTimed(t, plain, sound)
+
+	b := brokertest.Start(t, brokertest.Options{})
+	cfg, logPath := mqttConfig(t, s.baseline, b.URL)
+	f := startFed(t, cfg, nil) // connect first, with no sound yet
+	f.p.waitFor(t, "connected to the broker", 20*time.Second)
+	f.p.cmd.Process.Signal(syscall.SIGTERM)
+	<-f.p.done
+	b.Pause()
+	defer b.Resume()
+	total, stalled, windows2 := runTimed(t, cfg, sound)
+	if windows == "" || windows2 != windows {
+		t.Errorf("windows decided: %q alone, %q with a stalled broker", windows, windows2)
+	}
+	st := openLogReadOnly(t, logPath)
+	ob, _ := st.OutboxStats()
+	evs, _ := st.Events(store.EventQuery{})
+	if ob.Depth == 0 {
+		t.Errorf("nothing left in the outbox after a run against a hung broker (%d events logged)", len(evs))
+	}
+	t.Logf("%s windows analysed in %v without a broker, %v with a hung one (ratio %.2f); the run with the hung broker took %v from start to exit; %d messages left queued",
+		windows, alone.Round(time.Millisecond), stalled.Round(time.Millisecond), stalled.Seconds()/alone.Seconds(), total.Round(time.Millisecond), ob.Depth)
+}

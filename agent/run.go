@@ -151,6 +151,7 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 	daemon.SdNotify(false, daemon.SdNotifyReady)
 	runErr := mon.Run(ctx, src)
 	daemon.SdNotify(false, daemon.SdNotifyStopping)
+	log.Info("analysis ended", "windows", mon.Status().Windows, "reason", stopReason(ctx, runErr))
 	closeCtx, cancel := context.WithTimeout(context.Background(), shutdownGrace)
 	defer cancel()
 	if err := src.closeFn(closeCtx); err != nil {

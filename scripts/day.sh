@@ -13,6 +13,10 @@
 #
 # Usage: scripts/day.sh [HOURS [SEED [SNR]]]   (defaults 24, 1, 6 dB; SNR one of 10, 6, 3, 0, -3, -6)
 # DAY_DIR=FOLDER picks the working folder (default: a new temporary one).
+# DAY_BROKER=URL adds an mqtt section: with a URL where no broker answers
+# (tcp://127.0.0.1:9) the day is a broker outage, and the run shows the
+# outbox filling up to its bound while memory stays flat. DAY_SUMMARY_MIN
+# (default 60) and DAY_OUTBOX_MB (default 8) make that happen sooner.
 # The simulator is the bottleneck (some 40-90x real time on one core), so a
 # day takes 15 to 40 minutes, depending on what else the machine is doing.
 set -euo pipefail
@@ -43,7 +47,11 @@ source:
   channels: 1
 log:
   path: $work/day.db
+  summary_min: ${DAY_SUMMARY_MIN:-60}
 EOF
+if [ -n "${DAY_BROKER:-}" ]; then
+  printf 'mqtt:\n  url: %s\n  outbox_mb: %s\n  reconnect_max_s: 60\n' "$DAY_BROKER" "${DAY_OUTBOX_MB:-8}" >>"$work/day.yaml"
+fi
 log="$work/day.log"
 stats=10s  # the agent's figures interval, in wall time
 echo "day: seed $seed, ${hours} h of healthy running at SNR $snr dB; agent log in $log"
@@ -106,6 +114,11 @@ echo "heap and goroutines (figures every $stats of wall time; live heap after ea
 { grep 'msg=figures' "$log" || true; } | sed -n 's/.* heap_bytes=\([0-9]*\).*/\1/p' | summary "heap_bytes" MiB 1048576
 { grep '^gc [0-9]' "$log" || true; } | sed -n 's/.*->\([0-9]*\) MB, .*/\1/p' | summary "live heap (GC)" "MB (whole MB)" 1
 { grep 'msg=figures' "$log" || true; } | sed -n 's/.* goroutines=\([0-9]*\).*/\1/p' | summary "goroutines" "" 1
+if [ -n "${DAY_BROKER:-}" ]; then
+  echo "broker $DAY_BROKER: $(grep -c 'broker unreachable' "$log" || true) failed connects logged, $(grep -c 'connected to the broker' "$log" || true) connections"
+  grep 'messages left in the outbox' "$log" | tail -n 1 || echo "outbox empty at the end"
+  go run ./scripts/outbox "$work/day.db" || true
+fi
 if ((alarms + warnings > 0)); then
   echo
   echo "alarm and warning events (all false: the audio is healthy):"

@@ -116,7 +116,7 @@ func (p *Publisher) note(f func(*Stats)) {
 func (p *Publisher) Run(ctx context.Context) error {
 	backoff := p.cfg.ReconnectMin
 	for ctx.Err() == nil {
-		c, lost, broker, err := p.connect()
+		c, lost, broker, err := p.connect(ctx)
 		if err != nil {
 			p.note(func(s *Stats) { s.Failures++; s.LastError = err.Error() })
 			wait := backoff/2 + rand.N(backoff/2+1)
@@ -147,7 +147,7 @@ func (p *Publisher) Run(ctx context.Context) error {
 }
 
 // connect makes one paho client with a fresh will and connects it.
-func (p *Publisher) connect() (mqtt.Client, <-chan struct{}, string, error) {
+func (p *Publisher) connect(ctx context.Context) (mqtt.Client, <-chan struct{}, string, error) {
 	will, err := p.statusPayload("offline", ReasonLost, false)
 	if err != nil {
 		return nil, nil, "", err
@@ -172,9 +172,17 @@ func (p *Publisher) connect() (mqtt.Client, <-chan struct{}, string, error) {
 	}
 	c := mqtt.NewClient(opts)
 	tok := c.Connect()
-	if !tok.WaitTimeout(p.cfg.ConnectTimeout*time.Duration(len(p.cfg.URLs)) + time.Second) {
-		c.Disconnect(0)
-		return nil, nil, "", fmt.Errorf("no CONNACK within %v", p.cfg.ConnectTimeout)
+	// Wait for the CONNACK, but give up at once when told to stop: a hung
+	// broker must not hold up a shutdown.
+	deadline := time.Now().Add(p.cfg.ConnectTimeout*time.Duration(len(p.cfg.URLs)) + time.Second)
+	for !tok.WaitTimeout(100 * time.Millisecond) {
+		if ctx.Err() != nil || time.Now().After(deadline) {
+			c.Disconnect(0)
+			if ctx.Err() != nil {
+				return nil, nil, "", ctx.Err()
+			}
+			return nil, nil, "", fmt.Errorf("no CONNACK within %v", p.cfg.ConnectTimeout)
+		}
 	}
 	if err := tok.Error(); err != nil {
 		return nil, nil, "", err

@@ -268,12 +268,30 @@ func (b *Broker) Kill() {
 	b.signal(syscall.SIGKILL)
 }
 
+// Pause freezes the broker (SIGSTOP): connections stay open and the
+// kernel still accepts new ones, but nothing is answered, like a broker
+// that hangs or a network that swallows packets. Resume undoes it; Stop
+// and Kill resume it first.
+func (b *Broker) Pause() {
+	if b.running() {
+		b.cmd.Process.Signal(syscall.SIGSTOP)
+	}
+}
+
+// Resume lets a paused broker run again (SIGCONT).
+func (b *Broker) Resume() {
+	if b.running() {
+		b.cmd.Process.Signal(syscall.SIGCONT)
+	}
+}
+
 // signal sends sig to a running broker and reports whether it exited within
 // waitLimit.
 func (b *Broker) signal(sig syscall.Signal) bool {
 	if !b.running() {
 		return true
 	}
+	b.cmd.Process.Signal(syscall.SIGCONT) // a paused broker would not act on sig
 	b.cmd.Process.Signal(sig)
 	select {
 	case <-b.done:
