@@ -1,62 +1,47 @@
 package main
 
 import (
-	"fmt"
 	"net"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/auscult/auscult/pkg/config"
+	"github.com/auscult/auscult/pkg/publish/brokertest"
 )
 
-// startBroker runs Mosquitto (Debian's mosquitto package) on a free loopback
-// port with a generated configuration and returns its URL. Without the
-// binary the test skips, or fails under CI=true.
+// The broker password comes from the first line of a file or from an
+// environment variable, and a missing one is a clear error.
+func TestBrokerPassword(t *testing.T) {
+	dir := t.TempDir()
+	file := filepath.Join(dir, "pw")
+	os.WriteFile(file, []byte("kettle-7-granite\r\nsecond line\n"), 0o600)
+	if pw, err := brokerPassword(config.MQTT{PasswordFile: file}); pw != "kettle-7-granite" || err != nil {
+		t.Errorf("from a file: %q, %v", pw, err)
+	}
+	empty := filepath.Join(dir, "empty")
+	os.WriteFile(empty, []byte("\n"), 0o600)
+	if _, err := brokerPassword(config.MQTT{PasswordFile: empty}); err == nil || !strings.Contains(err.Error(), "first line is empty") {
+		t.Errorf("empty file: %v", err)
+	}
+	if _, err := brokerPassword(config.MQTT{PasswordFile: filepath.Join(dir, "none")}); err == nil || !strings.Contains(err.Error(), "mqtt.password_file") {
+		t.Errorf("missing file: %v", err)
+	}
+	t.Setenv("AUSCULT_TEST_PW", "from-env")
+	if pw, err := brokerPassword(config.MQTT{PasswordEnv: "AUSCULT_TEST_PW"}); pw != "from-env" || err != nil {
+		t.Errorf("from the environment: %q, %v", pw, err)
+	}
+	if _, err := brokerPassword(config.MQTT{PasswordEnv: "AUSCULT_TEST_UNSET"}); err == nil || !strings.Contains(err.Error(), "AUSCULT_TEST_UNSET is not set") {
+		t.Errorf("unset variable: %v", err)
+	}
+}
+
+// startBroker runs Mosquitto on a free loopback port (pkg/publish/brokertest)
+// and returns its URL.
 func startBroker(t *testing.T) string {
 	t.Helper()
-	bin, err := exec.LookPath("mosquitto")
-	if err != nil {
-		for _, p := range []string{"/usr/sbin/mosquitto", "/sbin/mosquitto"} {
-			if _, e := os.Stat(p); e == nil {
-				bin, err = p, nil
-			}
-		}
-	}
-	if err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatal("mosquitto not installed (CI=true: scripts/test.sh installs it)")
-		}
-		t.Skip("mosquitto not installed")
-	}
-	l, err := net.Listen("tcp", "127.0.0.1:0")
-	if err != nil {
-		t.Fatal(err)
-	}
-	port := l.Addr().(*net.TCPAddr).Port
-	l.Close()
-	conf := filepath.Join(t.TempDir(), "mosquitto.conf")
-	text := fmt.Sprintf("listener %d 127.0.0.1\nallow_anonymous true\npersistence false\n", port)
-	if err := os.WriteFile(conf, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	cmd := exec.Command(bin, "-c", conf)
-	if err := cmd.Start(); err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { cmd.Process.Kill(); cmd.Wait() })
-	addr := fmt.Sprintf("127.0.0.1:%d", port)
-	for end := time.Now().Add(5 * time.Second); time.Now().Before(end); time.Sleep(50 * time.Millisecond) {
-		if c, err := net.Dial("tcp", addr); err == nil {
-			c.Close()
-			return "tcp://" + addr
-		}
-	}
-	t.Fatalf("mosquitto did not listen on %s", addr)
-	return ""
+	return brokertest.Start(t, brokertest.Options{}).URL
 }
 
 // check's broker line against a real Mosquitto, and against a port where
@@ -78,10 +63,31 @@ func TestCheckBrokerLink(t *testing.T) {
 		t.Errorf("a dead broker gave %+v, %v; want a failed line naming %s", lines, err, dead)
 	}
 	// Fail-over: one live broker of two passes, and both are reported.
+	defer func() { cfg.MQTT.URLs = nil }()
 	cfg.MQTT.URL, cfg.MQTT.URLs = dead, []string{url}
 	lines, _ = checkBroker(cfg)
 	if len(lines) != 2 || !lines[0].ok || !strings.Contains(lines[1].text, "connected in") {
 		t.Errorf("fail-over pair gave %+v", lines)
+	}
+
+	// Credentials and TLS as configured: a password from a file, the
+	// broker's CA; a wrong password fails with the broker's reason.
+	tb := brokertest.Start(t, brokertest.Options{TLS: true, Users: map[string]string{"agent-p492b": "kettle-7-granite"}})
+	pwFile := filepath.Join(t.TempDir(), "mqtt-password")
+	os.WriteFile(pwFile, []byte("kettle-7-granite\n"), 0o600)
+	cfg.MQTT.URL, cfg.MQTT.URLs, cfg.MQTT.Username, cfg.MQTT.PasswordFile = tb.URL, nil, "agent-p492b", pwFile
+	cfg.MQTT.TLS.CAFile = tb.CAFile
+	if lines, err = checkBroker(cfg); err != nil || !lines[0].ok {
+		t.Errorf("TLS with a password: %+v, %v\n%s", lines, err, tb.Log())
+	}
+	os.WriteFile(pwFile, []byte("wrong\n"), 0o600)
+	if lines, _ = checkBroker(cfg); lines[0].ok || !strings.Contains(lines[0].text, "not Authorized") {
+		t.Errorf("a wrong password gave %+v", lines)
+	}
+	for _, l := range lines {
+		if strings.Contains(l.text, "wrong") {
+			t.Errorf("the password appears in check's output: %s", l.text)
+		}
 	}
 }
 

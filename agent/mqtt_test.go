@@ -13,6 +13,8 @@ import (
 	"testing"
 	"time"
 
+	mqtt "github.com/eclipse/paho.mqtt.golang"
+
 	"github.com/auscult/auscult/pkg/publish"
 	"github.com/auscult/auscult/pkg/publish/brokertest"
 	"github.com/auscult/auscult/pkg/publish/schema"
@@ -380,4 +382,64 @@ func TestRunWithStalledBroker(t *testing.T) {
 	}
 	t.Logf("%s windows analysed in %v without a broker, %v with a hung one (ratio %.2f); the run with the hung broker took %v from start to exit; %d messages left queued",
 		windows, alone.Round(time.Millisecond), stalled.Round(time.Millisecond), stalled.Seconds()/alone.Seconds(), total.Round(time.Millisecond), ob.Depth)
+}
+
+// The bridge acknowledges a real alarm through the command topic: the
+// monitor's alarm goes to ACKED, the alarm topic says so, and the response
+// is ok; acknowledging again is refused with a reason.
+func TestRunAnswersCommands(t *testing.T) {
+	agentBinary(t)
+	s := simulateSkid(t)
+	sound := skidScript(t, 2)
+	b := brokertest.Start(t, brokertest.Options{})
+	sub := b.Subscribe(t, "auscult/obrinvale/P-492B/#", brokertest.SubOptions{QoS: 1})
+	cfg, _ := mqttConfig(t, s.baseline, b.URL)
+	f := startFed(t, cfg, sound)
+	f.p.waitFor(t, ".raised seq=", 60*time.Second)
+	bridge := mqtt.NewClient(mqtt.NewClientOptions().AddBroker(b.URL).SetClientID("scada-bridge"))
+	if tok := bridge.Connect(); !tok.WaitTimeout(5*time.Second) || tok.Error() != nil {
+		t.Fatal(tok.Error())
+	}
+	defer bridge.Disconnect(100)
+	ack := func(id string) {
+		bridge.Publish("auscult/obrinvale/P-492B/command", 1, false, fmt.Sprintf(
+			`{"schema":1,"request_id":%q,"action":"acknowledge","by":"m.okafor","issued":%q}`, id, publish.Stamp(time.Now()))).Wait()
+	}
+	ack("desk-1")
+	ack("desk-2")
+	var responses []publish.Response
+	var acked []publish.Alarm
+	for end := time.Now().Add(15 * time.Second); time.Now().Before(end) && (len(responses) < 2 || len(acked) == 0); time.Sleep(100 * time.Millisecond) {
+		responses, acked = nil, nil
+		for _, m := range sub.Messages() {
+			if err := schema.Validate(m.Topic[strings.LastIndexByte(m.Topic, '/')+1:], m.Payload); err != nil {
+				t.Fatalf("%s: %v", m.Topic, err)
+			}
+			switch {
+			case strings.HasSuffix(m.Topic, "/response"):
+				var r publish.Response
+				json.Unmarshal(m.Payload, &r)
+				responses = append(responses, r)
+			case strings.HasSuffix(m.Topic, "/alarm"):
+				var a publish.Alarm
+				json.Unmarshal(m.Payload, &a)
+				if a.Change == "acknowledged" {
+					acked = append(acked, a)
+				}
+			}
+		}
+	}
+	if len(responses) != 2 || !responses[0].OK || responses[0].RequestID != "desk-1" || responses[1].OK ||
+		responses[1].Error == nil || responses[1].Error.Code != publish.CodeRefused {
+		t.Fatalf("responses %+v", responses)
+	}
+	if len(acked) != 1 || acked[0].State != "ACKED" && acked[0].State != "NORM" || acked[0].By != "m.okafor" {
+		t.Errorf("acknowledged alarm messages %+v", acked)
+	}
+	t.Logf("second acknowledge refused: %s", responses[1].Error.Message)
+	f.p.cmd.Process.Signal(syscall.SIGTERM)
+	<-f.p.done
+	if !strings.Contains(f.p.log(), `msg="command carried out" asset=P-492B part=mqtt request_id=desk-1`) {
+		t.Errorf("the agent's log does not record the command:\n%s", f.p.log())
+	}
 }

@@ -385,3 +385,24 @@ func TestFailover(t *testing.T) {
 		t.Errorf("connected to %q, want %q", s.Broker, b.URL)
 	}
 }
+
+// MQTT over WebSockets, plain and with TLS (ws:// and wss:// URLs).
+func TestWebSockets(t *testing.T) {
+	for _, tls := range []bool{false, true} {
+		t.Run(fmt.Sprintf("tls=%v", tls), func(t *testing.T) {
+			b := brokertest.Start(t, brokertest.Options{WebSockets: true, TLS: tls})
+			sub := b.Subscribe(t, "auscult/obrinvale/P-492B/alarm", brokertest.SubOptions{QoS: 1})
+			var notify func()
+			st := agentStore(t, &notify)
+			st.AppendEvent(alarmEvent(0, "alarm.raised"))
+			cfg := publish.Config{URLs: []string{b.WSURL}}
+			if tls {
+				cfg.TLS = publish.TLSFiles{CAFile: b.CAFile}
+			}
+			r, _ := startPublisher(t, cfg, st, &desk{}, &notify)
+			if _, ok := sub.WaitFor(1, 10*time.Second); !ok {
+				t.Fatalf("nothing over %s (%+v)\n%s", b.WSURL, r.pub.Stats(), b.Log())
+			}
+		})
+	}
+}
