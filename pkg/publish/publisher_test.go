@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"log/slog"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
 	"testing"
@@ -404,5 +405,33 @@ func TestWebSockets(t *testing.T) {
 				t.Fatalf("nothing over %s (%+v)\n%s", b.WSURL, r.pub.Stats(), b.Log())
 			}
 		})
+	}
+}
+
+// Connect attempts that fail (refused, or no CONNACK from a hung broker)
+// leave no goroutines behind: an agent retries for days.
+func TestFailedConnectsDoNotLeak(t *testing.T) {
+	hung := brokertest.Start(t, brokertest.Options{})
+	hung.Pause()
+	defer hung.Resume()
+	dead := brokertest.Start(t, brokertest.Options{})
+	dead.Stop()
+	var notify func()
+	st := agentStore(t, &notify)
+	before := runtime.NumGoroutine()
+	for _, url := range []string{hung.URL, dead.URL} {
+		r, _ := startPublisher(t, publish.Config{URLs: []string{url}}, st, &desk{}, &notify)
+		// startPublisher sets a 2 s connect timeout and a back-off of at
+		// most 0.5 s: several attempts each.
+		time.Sleep(6 * time.Second)
+		if f := r.pub.Stats().Failures; f < 1 {
+			t.Errorf("%s: %d failed attempts in 6 s", url, f)
+		}
+		r.stop()
+	}
+	time.Sleep(500 * time.Millisecond)
+	if after := runtime.NumGoroutine(); after > before+2 {
+		buf := make([]byte, 1<<16)
+		t.Errorf("%d goroutines before, %d after the failed connects:\n%s", before, after, buf[:runtime.Stack(buf, true)])
 	}
 }
