@@ -28,6 +28,9 @@ func commands() []command {
 		{"run", "--config FILE [--source SPEC]", "listen continuously: alarms, trend and evidence into the local log", runRun},
 		{"check", "--config FILE [--source SPEC]", "validate the config, the baseline, the log folder and the microphone level", runCheck},
 		{"devices", "", "list the sound input devices live capture can open", runDevices},
+		{"export", "(--url URL | --db FILE) [--what events|trend|summaries] [--format csv|json]", "take the log home: events, trend or summaries for a time range", runExport},
+		{"backup", "(--url URL | --db FILE) --out FILE", "a consistent copy of the whole log, also from a running agent", runBackup},
+		{"report", "(--url URL | --db FILE) --out FILE [--from --to]", "one self-contained HTML file for the visit record", runReport},
 		{"version", "", "print the version", func(_ []string, out, _ io.Writer) error {
 			fmt.Fprintln(out, "auscult", version)
 			return nil

@@ -4,10 +4,8 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
-	"fmt"
 	"log/slog"
 	"os"
-	"strings"
 	"sync/atomic"
 	"time"
 
@@ -25,26 +23,7 @@ const drainGrace = 3 * time.Second
 // brokerPassword reads the password named by the mqtt section: the first
 // line of password_file, or the variable password_env. It is never logged.
 func brokerPassword(m config.MQTT) (string, error) {
-	switch {
-	case m.PasswordFile != "":
-		b, err := os.ReadFile(m.PasswordFile)
-		if err != nil {
-			return "", fmt.Errorf("mqtt.password_file: %w", err)
-		}
-		pw, _, _ := strings.Cut(string(b), "\n")
-		pw = strings.TrimRight(pw, "\r")
-		if pw == "" {
-			return "", fmt.Errorf("mqtt.password_file %s: the first line is empty", m.PasswordFile)
-		}
-		return pw, nil
-	case m.PasswordEnv != "":
-		pw, ok := os.LookupEnv(m.PasswordEnv)
-		if !ok || pw == "" {
-			return "", fmt.Errorf("mqtt.password_env: the variable %s is not set (for systemd: an Environment= or EnvironmentFile= line)", m.PasswordEnv)
-		}
-		return pw, nil
-	}
-	return "", nil
+	return readSecret(m.PasswordFile, m.PasswordEnv, "mqtt.password")
 }
 
 // publishConfig turns the mqtt section into the publisher's config.

@@ -136,6 +136,12 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 		src.closeFn(context.Background())
 		return err
 	}
+	pages, err := startWeb(cfg, st, liveView(cfg, b, mon, src, lk, time.Now().UTC()), log)
+	if err != nil {
+		lk.stop(log)
+		src.closeFn(context.Background())
+		return err
+	}
 
 	ctx, stop := signal.NotifyContext(context.Background(), syscall.SIGTERM, syscall.SIGINT)
 	defer stop()
@@ -159,6 +165,7 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 	}
 	close(done)
 	helpers.Wait()
+	pages.stop(log)
 	lk.stop(log)
 	logFigures(mon, log, "stopped", "reason", stopReason(ctx, runErr))
 	return runErr

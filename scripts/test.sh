@@ -8,8 +8,9 @@ cd "$(dirname "$0")/.."
 # (with libasound2-dev) builds live capture, tested through ALSA's file plugin;
 # systemd brings systemd-analyze, which checks the service unit; mosquitto is the
 # real broker the tests start on a free loopback port, and mosquitto-clients
-# brings mosquitto_sub, the client we did not write that receives what we publish.
-packages=(sox portaudio19-dev systemd mosquitto mosquitto-clients)
+# brings mosquitto_sub, the client we did not write that receives what we publish;
+# chromium is the real browser that loads the site-visit pages in their tests.
+packages=(sox portaudio19-dev systemd mosquitto mosquitto-clients chromium)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")

@@ -15,6 +15,21 @@ type Config struct {
 	Evidence Evidence `yaml:"evidence"`
 	Log      Log      `yaml:"log"`
 	MQTT     MQTT     `yaml:"mqtt"`
+	Web      Web      `yaml:"web"`
+}
+
+// Web configures the site-visit pages. No listen address: off.
+type Web struct {
+	// Listen is the address to serve on, e.g. 0.0.0.0:8440 or
+	// 127.0.0.1:8440; empty turns the pages off.
+	Listen string `yaml:"listen"`
+	// TokenFile (first line) or TokenEnv (an environment variable) holds
+	// the token every page asks for; at least 16 characters.
+	TokenFile string `yaml:"token_file"`
+	TokenEnv  string `yaml:"token_env"`
+	// TLSCertFile and TLSKeyFile serve HTTPS instead of HTTP.
+	TLSCertFile string `yaml:"tls_cert_file"`
+	TLSKeyFile  string `yaml:"tls_key_file"`
 }
 
 // MQTT names the plant's broker. No URL: no broker (the local log only).

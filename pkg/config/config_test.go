@@ -71,6 +71,8 @@ func TestParseErrors(t *testing.T) {
 		{"cert without key", "asset: P-1\nmqtt:\n  tls:\n    cert_file: /c\n", []string{"mqtt.tls.cert_file"}},
 		{"wildcard prefix", "asset: P-1\nmqtt:\n  topic_prefix: plant/#\n", []string{"mqtt.topic_prefix"}},
 		{"back-off upside down", "asset: P-1\nmqtt:\n  reconnect_min_s: 60\n  reconnect_max_s: 5\n", []string{"mqtt.reconnect_max_s"}},
+		{"web without a token", "asset: P-1\nweb:\n  listen: 0.0.0.0:8440\n", []string{"web.token_file"}},
+		{"web listen not host:port", "asset: P-1\nweb:\n  listen: 8440\n  token_env: T\n", []string{"web.listen"}},
 		{"password in the file", "asset: P-1\nmqtt:\n  password: hunter2\n", []string{"mqtt.password: unknown key"}},
 		{"two problems at once", "asset: P-1\nsource:\n  rate_hz: 1\nlog:\n  flush_s: 0\n", []string{"source.rate_hz", "log.flush_s"}},
 	}

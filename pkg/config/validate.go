@@ -2,6 +2,7 @@ package config
 
 import (
 	"fmt"
+	"net"
 	"regexp"
 	"slices"
 	"strings"
@@ -92,6 +93,17 @@ func (c Config) validate(file string, lines map[string]int) []error {
 		bad("log.summary_min", "must divide a day (e.g. 15, 60, 1440 minutes), got %d", l.SummaryMin)
 	}
 	errs = append(errs, c.MQTT.validate(file, lines)...)
+	if w := c.Web; w.Listen != "" {
+		if _, port, err := net.SplitHostPort(w.Listen); err != nil || port == "" {
+			bad("web.listen", "%q: want HOST:PORT, e.g. 0.0.0.0:8440", w.Listen)
+		}
+		if (w.TokenFile == "") == (w.TokenEnv == "") {
+			bad("web.token_file", "set token_file or token_env (exactly one): the pages need a token")
+		}
+		if (w.TLSCertFile == "") != (w.TLSKeyFile == "") {
+			bad("web.tls_cert_file", "tls_cert_file and tls_key_file go together")
+		}
+	}
 	return errs
 }
 
