@@ -64,7 +64,14 @@ type feeder struct {
 
 func startFed(t *testing.T, cfgPath string, sound []byte) *feeder {
 	t.Helper()
-	cmd := exec.Command(agentBinary(t), "run", "--config", cfgPath, "--clock", "samples")
+	return startFedArgs(t, cfgPath, sound, false, "--clock", "samples")
+}
+
+// startFedArgs is startFed with other run options; keepOpen leaves stdin
+// open after the sound, so the agent keeps running (serving its pages).
+func startFedArgs(t *testing.T, cfgPath string, sound []byte, keepOpen bool, args ...string) *feeder {
+	t.Helper()
+	cmd := exec.Command(agentBinary(t), append([]string{"run", "--config", cfgPath}, args...)...)
 	p := &process{cmd: cmd, done: make(chan error, 1)}
 	stdin, err := cmd.StdinPipe()
 	if err != nil {
@@ -99,7 +106,9 @@ func startFed(t *testing.T, cfgPath string, sound []byte) *feeder {
 			f.fed += time.Second / 4
 			f.mu.Unlock()
 		}
-		stdin.Close()
+		if !keepOpen {
+			stdin.Close()
+		}
 	}()
 	return f
 }

@@ -32,6 +32,7 @@ func runRun(args []string, stdout, stderr io.Writer) error {
 	srcSpec := fs.String("source", "", "override the configured source: device[:NAME], wav:PATH or stdin")
 	speed := fs.Float64("speed", -1, "replay speed of a wav source: 1 real time, 0 as fast as possible (default: the config's)")
 	clock := fs.String("clock", "", "time stamps: wall (the computer's clock) or samples (counted from the start, for replays); default: wall for a device or stdin, samples for wav")
+	clockStart := fs.String("clock-start", "", "with --clock samples: when the sound began, an RFC 3339 time or how long ago (e.g. 3h); default now")
 	statsEvery := fs.Duration("stats-every", time.Hour, "how often to log the agent's own figures (windows, lag, heap, goroutines)")
 	if rest, err := parse(fs, args); err != nil {
 		return err
@@ -44,6 +45,19 @@ func runRun(args []string, stdout, stderr io.Writer) error {
 	if *clock != "" && *clock != "wall" && *clock != "samples" {
 		return usagef("--clock %q: want wall or samples", *clock)
 	}
+	start := time.Now().UTC()
+	if *clockStart != "" {
+		if *clock != "samples" {
+			return usagef("--clock-start goes with --clock samples")
+		}
+		if d, err := time.ParseDuration(*clockStart); err == nil && d >= 0 {
+			start = start.Add(-d)
+		} else if t, err := time.Parse(time.RFC3339Nano, *clockStart); err == nil {
+			start = t.UTC()
+		} else {
+			return usagef("--clock-start %q: want an RFC 3339 time or a duration such as 3h", *clockStart)
+		}
+	}
 	if *statsEvery <= 0 {
 		return usagef("--stats-every %v: want a positive duration such as 10m", *statsEvery)
 	}
@@ -52,7 +66,7 @@ func runRun(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	log := slog.New(slog.NewTextHandler(stderr, nil)).With("asset", cfg.Asset)
-	return serve(cfg, *cfgPath, os.Stdin, log, serveOptions{clock: *clock, statsEvery: *statsEvery})
+	return serve(cfg, *cfgPath, os.Stdin, log, serveOptions{clock: *clock, start: start, statsEvery: *statsEvery})
 }
 
 // loadRunConfig reads the config and applies the command-line overrides.
@@ -77,12 +91,16 @@ func loadRunConfig(path, srcSpec string, speed float64) (config.Config, error) {
 
 // serveOptions are the command line's settings beyond the config file.
 type serveOptions struct {
-	clock      string // "", "wall" or "samples"
+	clock      string    // "", "wall" or "samples"
+	start      time.Time // what the first sample is stamped with under a sample clock
 	statsEvery time.Duration
 }
 
 // serve runs the agent until its source ends or it is told to stop.
 func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger, so serveOptions) error {
+	if so.start.IsZero() {
+		so.start = time.Now().UTC()
+	}
 	b, err := baseline.Load(cfg.Baseline)
 	if err != nil {
 		return err
@@ -126,7 +144,7 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 	mon, err := monitor.New(monitor.Config{Baseline: b, Asset: cfg.Asset, Alarm: ac, Lines: lines,
 		EvidenceBefore: seconds(cfg.Evidence.BeforeS), EvidenceAfter: seconds(cfg.Evidence.AfterS),
 		SummaryPeriod: time.Duration(cfg.Log.SummaryMin) * time.Minute,
-		Clock:         src.clock(time.Now().UTC(), b.Features.Rate), Logger: log}, st)
+		Clock:         src.clock(so.start, b.Features.Rate), Logger: log}, st)
 	if err != nil {
 		src.closeFn(context.Background())
 		return err
@@ -145,6 +163,9 @@ func serve(cfg config.Config, cfgPath string, stdin io.Reader, log *slog.Logger,
 
 	ctx, stop := signal.NotifyContext(context.Background(), syscall.SIGTERM, syscall.SIGINT)
 	defer stop()
+	if src.interrupt != nil {
+		defer context.AfterFunc(ctx, src.interrupt)()
+	}
 	hup := make(chan os.Signal, 1)
 	signal.Notify(hup, syscall.SIGHUP)
 	defer signal.Stop(hup)

@@ -5,7 +5,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"strings"
+	"syscall"
 	"time"
 
 	"github.com/auscult/auscult/pkg/audio"
@@ -22,6 +24,28 @@ type liveSource struct {
 	capture  *capture.Capture                // set for a device, for its diagnostics
 	closeFn  func(ctx context.Context) error // releases the device or files
 	clock    func(start time.Time, rate int) func(int64) time.Time
+	// interrupt, if set, makes a read blocked on the source return, so a
+	// stop signal is not held up by a pipe with nothing in it.
+	interrupt func()
+}
+
+// interruptible returns a reader whose blocked Read the returned function
+// ends: stdin as a pollable, non-blocking file with a read deadline. A
+// terminal, or a reader that is not a file, is returned as it is.
+func interruptible(r io.Reader) (io.Reader, func()) {
+	f, ok := r.(*os.File)
+	if !ok {
+		return r, nil
+	}
+	if fi, err := f.Stat(); err != nil || fi.Mode()&os.ModeCharDevice != 0 {
+		return r, nil
+	}
+	fd := f.Fd()
+	if err := syscall.SetNonblock(int(fd), true); err != nil {
+		return r, nil
+	}
+	nf := os.NewFile(fd, f.Name())
+	return nf, func() { nf.SetReadDeadline(time.Now()) }
 }
 
 // parseSourceFlag turns --source into a config.Source, starting from the
@@ -66,7 +90,8 @@ func openSource(s config.Source, rate int, stdin io.Reader) (*liveSource, error)
 		return &liveSource{Source: src, desc: "device " + quoteOrDefault(s.Device), realtime: true, capture: c,
 			closeFn: c.Close, clock: wall}, nil
 	case config.SourceStdin:
-		r, err := audio.NewRawSource(stdin, s.RateHz, s.Channels, s.Channel)
+		in, interrupt := interruptible(stdin)
+		r, err := audio.NewRawSource(in, s.RateHz, s.Channels, s.Channel)
 		if err != nil {
 			return nil, err
 		}
@@ -75,7 +100,7 @@ func openSource(s config.Source, rate int, stdin io.Reader) (*liveSource, error)
 			return nil, err
 		}
 		return &liveSource{Source: src, desc: fmt.Sprintf("stdin (s16le, %d Hz, %d channels)", s.RateHz, s.Channels),
-			realtime: true, closeFn: func(context.Context) error { return nil }, clock: wall}, nil
+			realtime: true, closeFn: func(context.Context) error { return nil }, clock: wall, interrupt: interrupt}, nil
 	case config.SourceWAV:
 		files, err := wavPaths([]string{s.Path})
 		if err != nil {

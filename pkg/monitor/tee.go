@@ -27,6 +27,9 @@ func (t *tee) Read(p []int16) (int, error) {
 	if n > 0 {
 		t.m.samples(p[:n])
 	}
+	if err != nil && t.ctx.Err() != nil {
+		return n, io.EOF // told to stop: a read cut short is the end, not a failure
+	}
 	if err != nil && err != io.EOF {
 		t.err = err
 		return n, err

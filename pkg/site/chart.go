@@ -581,7 +581,7 @@ func (c TrendChart) writeScore(o *chartOut, l *chartLayout, b []chartBucket, tic
 		o.s(`" style="fill:`)
 		o.s(t.text)
 		o.s(`">`)
-		o.text(t.label + strconv.FormatFloat(t.v, 'f', -1, 64))
+		o.text(t.label + strconv.FormatFloat(t.v, 'f', 3, 64))
 		o.s("</text>\n")
 	}
 	if !slices.ContainsFunc(b, func(q chartBucket) bool { return q.scored() }) && slices.ContainsFunc(b, func(q chartBucket) bool { return q.n > 0 }) {

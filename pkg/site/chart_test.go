@@ -254,9 +254,9 @@ func TestChartThresholdOnScale(t *testing.T) {
 		}
 	}
 	// The label of a threshold names it.
-	found := score.all(func(n *xnode) bool { return n.XMLName.Local == "text" && n.Text == "alarm 0.5" })
+	found := score.all(func(n *xnode) bool { return n.XMLName.Local == "text" && n.Text == "alarm 0.500" })
 	if len(found) != 1 {
-		t.Errorf("threshold label \"alarm 0.5\" missing")
+		t.Errorf("threshold label \"alarm 0.500\" missing")
 	}
 	// Units on the other panels' ticks.
 	for label := range yTicks(t, root.all(byClass("level"))[0]) {

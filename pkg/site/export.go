@@ -29,12 +29,13 @@ const pageSize = 1000
 // ParseRange reads an export's from and to as the pages and commands do;
 // see parseRange.
 func ParseRange(fromS, toS string, defFrom, defTo time.Time) (from, to time.Time, err error) {
-	return parseRange(fromS, toS, defFrom, defTo)
+	return parseRange(fromS, toS, defFrom, defTo, defTo)
 }
 
 // parseRange reads from and to: an RFC 3339 time, a date (UTC midnight),
-// or for from a look-back such as "24h" or "7d". Empty takes the default.
-func parseRange(fromS, toS string, defFrom, defTo time.Time) (from, to time.Time, err error) {
+// or a look-back from now such as "24h" or "7d". Empty takes the default
+// (a zero default: unbounded).
+func parseRange(fromS, toS string, defFrom, defTo, now time.Time) (from, to time.Time, err error) {
 	parse := func(name, s string, def time.Time) (time.Time, error) {
 		s = strings.TrimSpace(s)
 		switch {
@@ -47,7 +48,7 @@ func parseRange(fromS, toS string, defFrom, defTo time.Time) (from, to time.Time
 				if strings.HasSuffix(s, "d") {
 					unit = 24 * time.Hour
 				}
-				return defTo.Add(-time.Duration(n * float64(unit))), nil
+				return now.Add(-time.Duration(n * float64(unit))), nil
 			}
 		}
 		if t, err := time.Parse(time.RFC3339Nano, s); err == nil {
@@ -362,7 +363,7 @@ func (s *Server) export(w http.ResponseWriter, r *http.Request) {
 		format = "csv"
 	}
 	now := s.cfg.Now().UTC()
-	from, to, err := parseRange(q.Get("from"), q.Get("to"), now.Add(-30*24*time.Hour), now.Add(time.Minute))
+	from, to, err := parseRange(q.Get("from"), q.Get("to"), now.Add(-30*24*time.Hour), now.Add(time.Minute), now)
 	if err == nil && (!contains(exportKinds, what) || !contains(exportFormats, format)) {
 		err = fmt.Errorf("site: export what=%q format=%q: want what events, trend or summaries and format csv or json", what, format)
 	}

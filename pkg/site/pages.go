@@ -240,7 +240,7 @@ const eventsPageSize = 100
 func (s *Server) eventsPage(w http.ResponseWriter, r *http.Request) {
 	q := r.URL.Query()
 	f := filter{Kind: q.Get("kind"), Code: q.Get("code"), From: q.Get("from"), To: q.Get("to")}
-	from, to, err := parseRange(f.From, f.To, time.Time{}, s.cfg.Now())
+	from, to, err := parseRange(f.From, f.To, time.Time{}, time.Time{}, s.cfg.Now())
 	if err != nil {
 		s.fail(w, r, http.StatusBadRequest, err)
 		return
@@ -401,7 +401,7 @@ func (s *Server) clipSpectrogram(w http.ResponseWriter, r *http.Request) {
 func (s *Server) summariesPage(w http.ResponseWriter, r *http.Request) {
 	q := r.URL.Query()
 	now := s.cfg.Now()
-	from, to, err := parseRange(q.Get("from"), q.Get("to"), now.Add(-30*24*time.Hour), now)
+	from, to, err := parseRange(q.Get("from"), q.Get("to"), now.Add(-30*24*time.Hour), now.Add(time.Minute), now)
 	if err != nil {
 		s.fail(w, r, http.StatusBadRequest, err)
 		return

@@ -141,7 +141,7 @@ func WriteReport(w io.Writer, in ReportInput) error {
 func (s *Server) report(w http.ResponseWriter, r *http.Request) {
 	q := r.URL.Query()
 	now := s.cfg.Now().UTC()
-	from, to, err := parseRange(q.Get("from"), q.Get("to"), now.Add(-30*24*time.Hour), now)
+	from, to, err := parseRange(q.Get("from"), q.Get("to"), now.Add(-30*24*time.Hour), now, now)
 	if err != nil {
 		s.fail(w, r, http.StatusBadRequest, err)
 		return
