@@ -105,3 +105,26 @@ func TestCheckCommandReportsBroker(t *testing.T) {
 		t.Errorf("a missing baseline must fail check (exit %d):\n%s", r.code, r.stdout)
 	}
 }
+
+// check's web line: off, a short token, a taken port, and ready.
+func TestCheckWeb(t *testing.T) {
+	if line, err := checkWeb(config.Web{}); err != nil || !strings.Contains(line, "off") {
+		t.Errorf("off: %q %v", line, err)
+	}
+	dir := t.TempDir()
+	short := filepath.Join(dir, "short")
+	os.WriteFile(short, []byte("tooshort\n"), 0o600)
+	if _, err := checkWeb(config.Web{Listen: "127.0.0.1:0", TokenFile: short}); err == nil || !strings.Contains(err.Error(), "at least 16") {
+		t.Errorf("short token: %v", err)
+	}
+	good := filepath.Join(dir, "good")
+	os.WriteFile(good, []byte("obrinvale-skid7-visit-9c41e2\n"), 0o600)
+	l, _ := net.Listen("tcp", "127.0.0.1:0")
+	defer l.Close()
+	if _, err := checkWeb(config.Web{Listen: l.Addr().String(), TokenFile: good}); err == nil || !strings.Contains(err.Error(), "already running") {
+		t.Errorf("taken port: %v", err)
+	}
+	if line, err := checkWeb(config.Web{Listen: "127.0.0.1:0", TokenFile: good}); err != nil || !strings.Contains(line, "can be served") {
+		t.Errorf("ready: %q %v", line, err)
+	}
+}

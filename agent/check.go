@@ -2,10 +2,12 @@ package main
 
 import (
 	"context"
+	"crypto/tls"
 	"errors"
 	"fmt"
 	"io"
 	"math"
+	"net"
 	"os"
 	"path/filepath"
 	"time"
@@ -13,6 +15,7 @@ import (
 	"github.com/auscult/auscult/pkg/baseline"
 	"github.com/auscult/auscult/pkg/config"
 	"github.com/auscult/auscult/pkg/gate"
+	"github.com/auscult/auscult/pkg/site"
 )
 
 // checkSeconds is how much sound check listens to.
@@ -75,11 +78,45 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 			failed = append(failed, "broker")
 		}
 	}
+	if line, err := checkWeb(cfg.Web); err != nil {
+		fmt.Fprintf(stdout, "web         FAIL %v\n", err)
+		failed = append(failed, "web")
+	} else {
+		fmt.Fprintf(stdout, "web         %s\n", line)
+	}
 	if len(failed) > 0 {
 		return fmt.Errorf("%d check(s) failed: %v", len(failed), failed)
 	}
 	fmt.Fprintln(stdout, "all checks passed")
 	return nil
+}
+
+// checkWeb checks the site-visit pages can start: the token is readable
+// and long enough, the TLS files load, the address is free.
+func checkWeb(w config.Web) (string, error) {
+	if w.Listen == "" {
+		return "off (web.listen): no site-visit pages", nil
+	}
+	token, err := readSecret(w.TokenFile, w.TokenEnv, "web.token")
+	if err != nil {
+		return "", err
+	}
+	if len(token) < site.MinTokenLen {
+		return "", fmt.Errorf("the web token is %d characters, at least %d (make one with: head -c 24 /dev/urandom | base64)", len(token), site.MinTokenLen)
+	}
+	scheme := "http"
+	if w.TLSCertFile != "" {
+		if _, err := tls.LoadX509KeyPair(w.TLSCertFile, w.TLSKeyFile); err != nil {
+			return "", fmt.Errorf("web.tls_cert_file / tls_key_file: %w", err)
+		}
+		scheme = "https"
+	}
+	ln, err := net.Listen("tcp", w.Listen)
+	if err != nil {
+		return "", fmt.Errorf("web.listen %s: %w (is the agent already running?)", w.Listen, err)
+	}
+	ln.Close()
+	return fmt.Sprintf("%s://%s/ can be served; token of %d characters", scheme, w.Listen, len(token)), nil
 }
 
 // logWritable checks the log's folder takes files, without touching a
