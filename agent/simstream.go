@@ -47,9 +47,10 @@ func parseScript(s string) ([]phase, error) {
 
 // streamSim writes the scripted simulation as raw s16le mono PCM to w.
 // Healthy running moves to the next drive set-point every ten minutes.
-func streamSim(w io.Writer, seed int64, snr float64, rate int, phases []phase) error {
+// take picks another recording of the same machine.
+func streamSim(w io.Writer, seed int64, take int, snr float64, rate int, phases []phase) error {
 	m := sim.NewMachine(seed)
-	s := sim.NewStream(m, sim.Clip{SNRdB: snr, SetpointHz: m.Setpoints[0], Seed: uint64(seed)*7919 + 1}, rate)
+	s := sim.NewStream(m, sim.Clip{SNRdB: snr, SetpointHz: m.Setpoints[0], Seed: uint64(seed)*7919 + 1 + uint64(take)*104729}, rate)
 	bw := bufio.NewWriterSize(w, 1<<16)
 	chunk := 10 * rate // sim.Stream renders 10 s chunks; conditions change between them
 	buf := make([]int16, chunk)

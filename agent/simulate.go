@@ -23,6 +23,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 	script := fs.String("script", "", "instead of files, stream raw s16le PCM to stdout following this `script`, "+
 		"e.g. healthy@2h,bearing_outer/moderate@10m,stopped@5m (for `auscult run --source stdin`)")
 	snr := fs.Float64("snr", 6, "signal-to-noise ratio of a streamed script in dB (one of +10, +6, +3, 0, -3, -6)")
+	take := fs.Int("take", 0, "with --script: which recording of the same pump (another take has other background, nuisances and wander)")
 	if _, err := parse(fs, args); err != nil {
 		return err
 	}
@@ -39,7 +40,10 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 		}
 		fmt.Fprintf(stderr, "streaming pump %s at %g dB SNR, %d Hz s16le mono: %s\n",
 			sim.NewMachine(*seed).Asset, *snr, *rate, describeScript(phases))
-		return streamSim(stdout, *seed, *snr, *rate, phases)
+		if *take < 0 {
+			return usagef("--take %d: want 0 or more", *take)
+		}
+		return streamSim(stdout, *seed, *take, *snr, *rate, phases)
 	}
 	if *out == "" {
 		return usagef("--out is required (or --script to stream)")
