@@ -120,7 +120,8 @@ func Unmarshal(data []byte, name string) (*Baseline, error) {
 		return fail(ErrNotBaseline, "missing the %q magic", "AUSCBL")
 	}
 	if v := binary.LittleEndian.Uint32(data[8:]); v != formatVersion {
-		return fail(ErrVersion, "version %d, this build reads version %d", v, formatVersion)
+		return fail(ErrVersion, "version %d, this build reads version %d; enrol the machine again with this build "+
+			"(auscult enroll --live --config FILE --out NEW), or run the build that wrote it", v, formatVersion)
 	}
 	if len(data) < 16+4 {
 		return fail(ErrCorrupt, "file ends after %d bytes", len(data))
