@@ -21,6 +21,11 @@ if ((${#missing[@]})); then
   $sudo apt-get update -qq
   DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
 fi
+# The cross-builds for the boards and qemu to run them here: scripts/build.sh --deps
+# adds the arm64 and armhf architectures to dpkg and installs gcc-aarch64-linux-gnu,
+# gcc-arm-linux-gnueabihf, their libc6-dev-*-cross, portaudio19-dev:arm64 and :armhf,
+# qemu-user-static, file and binutils when missing, and fails if a piece is still missing.
+bash scripts/build.sh --deps
 command -v go >/dev/null || { echo "test.sh: Go is not installed (need Go 1.26 or newer)"; exit 1; }
 # Everything the tests need is installed above: a test that finds a real
 # component missing must fail, not skip.
@@ -47,5 +52,7 @@ echo "== fuzz the MQTT command parser briefly"
 quiet go test -run '^$' -fuzz FuzzParseCommand -fuzztime 10s ./pkg/publish
 echo "== race detector on the concurrent parts"
 quiet go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor ./pkg/publish/...
+echo "== cross-architecture scores under qemu"
+bash scripts/crossarch.sh
 echo "== tests"
 go test -count=1 ./...
