@@ -54,5 +54,7 @@ echo "== race detector on the concurrent parts"
 quiet go test -count=1 -race -short ./agent ./pkg/pipeline ./pkg/ring ./pkg/capture ./pkg/store ./pkg/alarm ./pkg/monitor ./pkg/publish/...
 echo "== cross-architecture scores under qemu"
 bash scripts/crossarch.sh
+echo "== install, upgrade, remove and purge in a throw-away Debian root"
+quiet bash scripts/install-test.sh
 echo "== tests"
 go test -count=1 ./...
