@@ -73,9 +73,10 @@ web:
 EOF
 if [ -n "$mqtt" ]; then
 	printf 'mqtt:\n  url: %s\n  reconnect_max_s: 5\n' "$mqtt" >>"$work/agent.yaml"
-	command -v mosquitto_sub >/dev/null &&
+	if command -v mosquitto_sub >/dev/null; then
 		mosquitto_sub -h 127.0.0.1 -p "$port" -t 'auscult/#' -q 1 -v >"$work/scada.txt" 2>/dev/null &
-	pids+=($!)
+		pids+=($!)
+	fi
 fi
 echo "configuration: $work/agent.yaml"
 
