@@ -196,6 +196,10 @@ func TestPublishesInOrder(t *testing.T) {
 		t.Error("a new alarm was not sent")
 	}
 	waitEmpty(t, st)
+	// The count follows the outbox delete: give it a moment.
+	for end := time.Now().Add(5 * time.Second); r.pub.Stats().Published < 5 && time.Now().Before(end); {
+		time.Sleep(10 * time.Millisecond)
+	}
 	if s := r.pub.Stats(); !s.Connected || s.Published != 5 {
 		t.Errorf("stats %+v", s)
 	}
