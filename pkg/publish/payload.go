@@ -200,23 +200,8 @@ func (r renderer) summary(m store.Message) Summary {
 		PeriodS: r.period.Seconds(), RunningFraction: round(s.RunningFraction, 4), WindowsScored: s.Windows,
 		ScoreMin: s.ScoreMin, ScoreMean: s.ScoreMean, ScoreP95: s.ScoreP95, ScoreMax: s.ScoreMax,
 		AlarmsRaised: s.Alarms, WarningsRaised: s.Warnings, AlarmActiveS: round(s.AlarmSeconds, 3),
-		WorstState: isaName(s.Alarm), RMSMeanDBFS: round(s.RMSMeanDBFS, 2), RMSMaxDBFS: round(s.RMSMaxDBFS, 2),
+		WorstState: s.Alarm.ISA(), RMSMeanDBFS: round(s.RMSMeanDBFS, 2), RMSMaxDBFS: round(s.RMSMaxDBFS, 2),
 		CaptureOverruns: s.Overruns, Sensor: h, MessagesDropped: m.Drops.SinceSummary, MessagesDroppedTotal: m.Drops.Total}
-}
-
-// isaName maps the log's alarm states onto ISA-18.2's state names.
-func isaName(a store.AlarmState) string {
-	switch a {
-	case store.AlarmActive:
-		return "UNACK"
-	case store.AlarmAcknowledged:
-		return "ACKED"
-	case store.AlarmLatched:
-		return "RTNUN"
-	case store.AlarmShelved:
-		return "SHLVD"
-	}
-	return "NORM"
 }
 
 func round(x float64, digits int) float64 {

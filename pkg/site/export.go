@@ -85,38 +85,30 @@ func readTrend(st Store, from, to time.Time) ([]store.TrendPoint, error) {
 }
 
 func eachTrend(st Store, from, to time.Time, fn func(store.TrendPoint) error) error {
-	for {
-		page, err := st.Trend(store.Range{From: from, To: to, Limit: pageSize})
-		if err != nil {
-			return err
-		}
-		for _, p := range page {
-			if err := fn(p); err != nil {
-				return err
-			}
-		}
-		if len(page) < pageSize {
-			return nil
-		}
-		from = page[len(page)-1].Start.Add(time.Millisecond)
-	}
+	return eachPage(from, to, st.Trend, func(p store.TrendPoint) time.Time { return p.Start }, fn)
 }
 
 func eachSummary(st Store, from, to time.Time, fn func(store.Summary) error) error {
+	return eachPage(from, to, st.Summaries, func(m store.Summary) time.Time { return m.Start }, fn)
+}
+
+// eachPage calls fn for every record read returns in [from, to), one page
+// of pageSize per read transaction; start gives a record's key time.
+func eachPage[T any](from, to time.Time, read func(store.Range) ([]T, error), start func(T) time.Time, fn func(T) error) error {
 	for {
-		page, err := st.Summaries(store.Range{From: from, To: to, Limit: pageSize})
+		page, err := read(store.Range{From: from, To: to, Limit: pageSize})
 		if err != nil {
 			return err
 		}
-		for _, p := range page {
-			if err := fn(p); err != nil {
+		for _, r := range page {
+			if err := fn(r); err != nil {
 				return err
 			}
 		}
 		if len(page) < pageSize {
 			return nil
 		}
-		from = page[len(page)-1].Start.Add(time.Millisecond)
+		from = start(page[len(page)-1]).Add(time.Millisecond)
 	}
 }
 
@@ -151,21 +143,6 @@ var (
 	exportKinds   = []string{"events", "trend", "summaries"}
 	exportFormats = []string{"csv", "json"}
 )
-
-// isaState names a stored alarm state in ISA-18.2's vocabulary.
-func isaState(a store.AlarmState) string {
-	switch a {
-	case store.AlarmActive:
-		return "UNACK"
-	case store.AlarmAcknowledged:
-		return "ACKED"
-	case store.AlarmLatched:
-		return "RTNUN"
-	case store.AlarmShelved:
-		return "SHLVD"
-	}
-	return "NORM"
-}
 
 func num(x float64) string {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
@@ -230,9 +207,9 @@ func Export(w io.Writer, st Store, asset, kind, format string, from, to time.Tim
 		header := []string{"start", "windows", "score_min", "score_mean", "score_max", "rms_mean_dbfs", "rms_max_dbfs", "running_fraction", "alarm_state"}
 		err = eachTrend(st, from, to, func(p store.TrendPoint) error {
 			return rec(header, []string{stampMs(p.Start), strconv.Itoa(p.Windows), num(p.ScoreMin), num(p.ScoreMean), num(p.ScoreMax),
-				num(p.RMSMeanDBFS), num(p.RMSMaxDBFS), num(p.RunningFraction), isaState(p.Alarm)},
+				num(p.RMSMeanDBFS), num(p.RMSMaxDBFS), num(p.RunningFraction), p.Alarm.ISA()},
 				trendJSON{Start: stampMs(p.Start), Windows: p.Windows, ScoreMin: p.ScoreMin, ScoreMean: p.ScoreMean, ScoreMax: p.ScoreMax,
-					RMSMeanDBFS: p.RMSMeanDBFS, RMSMaxDBFS: p.RMSMaxDBFS, RunningFraction: p.RunningFraction, AlarmState: isaState(p.Alarm)})
+					RMSMeanDBFS: p.RMSMeanDBFS, RMSMaxDBFS: p.RMSMaxDBFS, RunningFraction: p.RunningFraction, AlarmState: p.Alarm.ISA()})
 		})
 	case "summaries":
 		header := []string{"start", "windows", "running_fraction", "score_min", "score_mean", "score_p95", "score_max", "rms_mean_dbfs",
@@ -240,11 +217,11 @@ func Export(w io.Writer, st Store, asset, kind, format string, from, to time.Tim
 		err = eachSummary(st, from, to, func(m store.Summary) error {
 			return rec(header, []string{stampMs(m.Start), strconv.Itoa(m.Windows), num(m.RunningFraction), num(m.ScoreMin), num(m.ScoreMean),
 				num(m.ScoreP95), num(m.ScoreMax), num(m.RMSMeanDBFS), num(m.RMSMaxDBFS), num(m.AlarmSeconds), strconv.Itoa(m.Alarms),
-				strconv.Itoa(m.Warnings), strconv.Itoa(m.Overruns), strconv.Itoa(m.SensorFaults), isaState(m.Alarm)},
+				strconv.Itoa(m.Warnings), strconv.Itoa(m.Overruns), strconv.Itoa(m.SensorFaults), m.Alarm.ISA()},
 				summaryJSON{Start: stampMs(m.Start), Windows: m.Windows, RunningFraction: m.RunningFraction, ScoreMin: m.ScoreMin,
 					ScoreMean: m.ScoreMean, ScoreP95: m.ScoreP95, ScoreMax: m.ScoreMax, RMSMeanDBFS: m.RMSMeanDBFS, RMSMaxDBFS: m.RMSMaxDBFS,
 					AlarmS: m.AlarmSeconds, Alarms: m.Alarms, Warnings: m.Warnings, Overruns: m.Overruns, SensorFaults: m.SensorFaults,
-					AlarmState: isaState(m.Alarm)})
+					AlarmState: m.Alarm.ISA()})
 		})
 	}
 	if err != nil {

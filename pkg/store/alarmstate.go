@@ -46,3 +46,19 @@ func (a AlarmState) validate(kind string) error {
 	}
 	return nil
 }
+
+// ISA returns a's ISA-18.2 state name, as messages and exports carry it:
+// UNACK, ACKED, RTNUN, SHLVD, or NORM for normal, pending and unknown.
+func (a AlarmState) ISA() string {
+	switch a {
+	case AlarmActive:
+		return "UNACK"
+	case AlarmAcknowledged:
+		return "ACKED"
+	case AlarmLatched:
+		return "RTNUN"
+	case AlarmShelved:
+		return "SHLVD"
+	}
+	return "NORM"
+}
