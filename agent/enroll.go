@@ -215,6 +215,7 @@ func printEnrolment(w io.Writer, b *baseline.Baseline, path string) {
 	fmt.Fprintf(w, "  enrolled    %d recordings, %.1f min of healthy sound, %d windows\n", e.Recordings,
 		e.Seconds/60, e.Windows)
 	fmt.Fprintf(w, "  model       %d dimensions, %d whitened components (eigenvalue floor x%.3g)\n", e.Dim, e.Components, b.Options.Floor)
+	fmt.Fprintf(w, "  centres     %d healthy operating point(s), the best of 1 to %d on held-out recordings\n", max(e.OperatingPoints, 1), max(b.Options.Centroids, 1))
 	fmt.Fprintf(w, "  held out    %d windows in %d folds: median distance %.3f, 99th percentile %.3f\n",
 		c.HeldOutWindows, c.Folds, c.HeldOutMedian, c.HeldOutP99)
 	fmt.Fprintf(w, "  gamma fit   shape %.3g, scale %.3g, location %.3g (Kolmogorov-Smirnov %.3f)\n", c.Shape, c.Scale, c.Loc, c.KS)

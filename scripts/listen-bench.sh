@@ -11,6 +11,9 @@
 # them as fast as they are answered (status, 30-day trend, events, the
 # spectrogram of an evidence clip, CSV and JSON exports of the month, the
 # backup) for the whole run: compare the latency with and without.
+# MQTT=1 also publishes to a private Mosquitto on a free loopback port (as on
+# the skid: alarms, hourly summaries, status), with mosquitto_sub
+# receiving; the message count is printed.
 #
 # CPU is utime+stime from /proc/PID/stat, sampled when the agent logs
 # "listening" and again just before SIGTERM, over the wall time between
@@ -57,6 +60,19 @@ log:
   path: $work/listen.db
 EOF
 load=${WEB_LOAD:-0}
+mqtt_pids=()
+if [ "${MQTT:-0}" = 1 ]; then
+  mosq="$(command -v mosquitto || echo /usr/sbin/mosquitto)"
+  [ -x "$mosq" ] || { echo "listen-bench.sh: MQTT=1 needs mosquitto (apt-get install mosquitto mosquitto-clients)" >&2; exit 1; }
+  mport=$((20000 + RANDOM % 20000))
+  printf 'listener %s 127.0.0.1\nallow_anonymous true\npersistence false\nuser root\n' "$mport" >"$work/mosquitto.conf"
+  "$mosq" -c "$work/mosquitto.conf" >"$work/mosquitto.log" 2>&1 &
+  mqtt_pids+=($!)
+  sleep 0.5
+  mosquitto_sub -h 127.0.0.1 -p "$mport" -t 'auscult/#' -q 1 -v >"$work/scada.txt" 2>/dev/null &
+  mqtt_pids+=($!)
+  printf 'mqtt:\n  url: tcp://127.0.0.1:%s\n' "$mport" >>"$work/listen.yaml"
+fi
 if ((load > 0)); then
   token="listen-bench-token-$(date +%s%N)"
   printf '%s\n' "$token" >"$work/web-token"
@@ -117,9 +133,9 @@ events=$(grep -c ' event=' "$log" || true)
 
 echo "listen-bench: figures over $(awk -v a="$t0" -v b="$t1" 'BEGIN { printf "%.1f", b - a }') s of listening ($(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg))"
 awk -v c0="$c0" -v c1="$c1" -v t0="$t0" -v t1="$t1" -v hz="$(getconf CLK_TCK)" -v hwm="$hwm_kb" \
-  -v win="$(field windows)" -v lm="$(field lag_mean_ms)" -v lx="$(field lag_max_ms)" -v ev="$events" -v load="$load" 'BEGIN {
+  -v win="$(field windows)" -v lm="$(field lag_mean_ms)" -v lx="$(field lag_max_ms)" -v ev="$events" -v webload="$load" 'BEGIN {
   cpu = 100 * (c1 - c0) / hz / (t1 - t0)
-  if (load > 0) {
+  if (webload > 0) {
     printf "CPU share of one core  %6.2f %%      (listening and serving the pages)\n", cpu
     printf "peak RSS (VmHWM)       %6.1f MiB    (listening and serving the pages)\n", hwm / 1024
   } else {
@@ -134,5 +150,10 @@ awk -v c0="$c0" -v c1="$c1" -v t0="$t0" -v t1="$t1" -v hz="$(getconf CLK_TCK)" -
 if ((load > 0)); then
   served=$(cat "$work"/client-*.count 2>/dev/null | awk '{ s += $1 } END { print s + 0 }')
   echo "web load             $load clients asking without pause: $served requests answered ($(awk -v n="$served" -v s="$secs" 'BEGIN { printf "%.1f", n / s }') per s)"
+fi
+if ((${#mqtt_pids[@]} > 0)); then
+  sleep 1
+  kill "${mqtt_pids[@]}" 2>/dev/null || true
+  echo "mqtt                 $(wc -l <"$work/scada.txt") messages received by mosquitto_sub ($(grep -c '/summary ' "$work/scada.txt" || true) summaries, $(grep -c '/alarm ' "$work/scada.txt" || true) alarm messages)"
 fi
 echo "listen-bench: agent log in $log"

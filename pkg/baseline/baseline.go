@@ -40,6 +40,8 @@ type Enrolment struct {
 	Seconds    float64 `json:"seconds"`
 	Dim        int     `json:"dim"`
 	Components int     `json:"components"`
+	// OperatingPoints is the number of healthy centres (1: the mean alone).
+	OperatingPoints int `json:"operating_points,omitempty"`
 }
 
 // Compatible reports whether audio analysed with fc can be scored against b.

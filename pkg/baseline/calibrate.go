@@ -53,6 +53,10 @@ type Calibration struct {
 	// HeldOutMedian and HeldOutP99 summarise the held-out distances.
 	HeldOutMedian float64 `json:"held_out_median"`
 	HeldOutP99    float64 `json:"held_out_p99"`
+	// HeldOutLogLik is the mean log-likelihood of the held-out windows
+	// under the chosen model (per window, natural log, up to a constant);
+	// it chose the number of operating-point centres.
+	HeldOutLogLik float64 `json:"held_out_loglik,omitempty"`
 }
 
 // CalibrationOptions sets the calibration targets.
@@ -101,6 +105,13 @@ var ErrTooFewGroups = errors.New("baseline: healthy data must hold at least two 
 // Enroll fits the model on all windows and calibrates it on held-out folds.
 // groups[i] names the recording or block window i came from; windows of one
 // group never sit on both sides of a fold.
+//
+// When mo.Centroids allows several operating points, the number of centres
+// is chosen on the same folds: every count from 1 to mo.Centroids is fitted
+// without each fold, and the count whose models give the held-out windows
+// the highest mean log-likelihood wins (cross-validated model selection).
+// Centres that only learn one recording's quirks do not carry over to
+// recordings they never saw, so they lose to fewer centres.
 func Enroll(x [][]float32, groups []int, mo ModelOptions, co CalibrationOptions) (*Model, Calibration, error) {
 	if len(x) != len(groups) {
 		return nil, Calibration{}, errors.New("baseline: one group per window needed")
@@ -114,7 +125,66 @@ func Enroll(x [][]float32, groups []int, mo ModelOptions, co CalibrationOptions)
 	for i, g := range ids {
 		foldOf[g] = i % folds
 	}
+	held, bestK, bestLL, err := chooseCentroids(x, groups, foldOf, folds, mo)
+	if err != nil {
+		return nil, Calibration{}, err
+	}
+	mo.Centroids = bestK
+	model, err := Fit(x, mo)
+	if err != nil {
+		return nil, Calibration{}, err
+	}
+	cal, err := Calibrate(held, co)
+	if err != nil {
+		return nil, Calibration{}, err
+	}
+	cal.Folds = folds
+	cal.HeldOutLogLik = bestLL
+	return model, cal, nil
+}
+
+// SelectCentroids returns the number of operating-point centres, from 1 to
+// mo.Centroids, that Enroll would choose for windows x grouped by groups,
+// with the given number of folds.
+func SelectCentroids(x [][]float32, groups []int, mo ModelOptions, folds int) (int, error) {
+	ids := distinct(groups)
+	folds = min(folds, len(ids))
+	if folds < 2 {
+		return 0, ErrTooFewGroups
+	}
+	foldOf := make(map[int]int, len(ids))
+	for i, g := range ids {
+		foldOf[g] = i % folds
+	}
+	_, k, _, err := chooseCentroids(x, groups, foldOf, folds, mo)
+	return k, err
+}
+
+// chooseCentroids tries every number of centres from 1 to mo.Centroids and
+// returns the held-out distances, count and mean log-likelihood of the one
+// with the highest held-out log-likelihood.
+func chooseCentroids(x [][]float32, groups []int, foldOf map[int]int, folds int, mo ModelOptions) ([]float64, int, float64, error) {
 	var held []float64
+	bestK, bestLL := 1, math.Inf(-1)
+	for k := 1; k <= max(mo.Centroids, 1); k++ {
+		opt := mo
+		opt.Centroids = k
+		d, ll, err := heldOut(x, groups, foldOf, folds, opt)
+		if err != nil {
+			return nil, 0, 0, err
+		}
+		if ll > bestLL {
+			bestK, bestLL, held = k, ll, d
+		}
+	}
+	return held, bestK, bestLL, nil
+}
+
+// heldOut scores every fold with a model fitted without it and returns the
+// held-out distances and their mean log-likelihood.
+func heldOut(x [][]float32, groups []int, foldOf map[int]int, folds int, mo ModelOptions) ([]float64, float64, error) {
+	var held []float64
+	var ll float64
 	for f := 0; f < folds; f++ {
 		var train, test [][]float32
 		for i, v := range x {
@@ -126,23 +196,15 @@ func Enroll(x [][]float32, groups []int, mo ModelOptions, co CalibrationOptions)
 		}
 		m, err := Fit(train, mo)
 		if err != nil {
-			return nil, Calibration{}, fmt.Errorf("baseline: fold %d: %w", f+1, err)
+			return nil, 0, fmt.Errorf("baseline: fold %d: %w", f+1, err)
 		}
 		s := m.NewScorer()
 		for _, v := range test {
 			held = append(held, s.Distance(v))
+			ll += s.LogDensity(v)
 		}
 	}
-	model, err := Fit(x, mo)
-	if err != nil {
-		return nil, Calibration{}, err
-	}
-	cal, err := Calibrate(held, co)
-	if err != nil {
-		return nil, Calibration{}, err
-	}
-	cal.Folds = folds
-	return model, cal, nil
+	return held, ll / float64(len(held)), nil
 }
 
 // Calibrate fits a gamma distribution to held-out healthy cosine distances

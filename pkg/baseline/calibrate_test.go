@@ -87,3 +87,58 @@ func TestEnrollNeedsTwoGroups(t *testing.T) {
 		t.Fatalf("got %v", err)
 	}
 }
+
+// groupedDraw returns windows of n recordings (groups), 40 windows each:
+// recording g sits at operating point pointOf(g) (a shared pattern times the
+// point) plus its own offset of size quirk, plus window noise.
+func groupedDraw(n int, pointOf func(int) float32, quirk float64, seed uint64) ([][]float32, []int) {
+	const d = 12
+	r := rand.New(rand.NewPCG(seed, 7))
+	shift := make([]float32, d)
+	for j := range shift {
+		shift[j] = float32(3 * r.NormFloat64())
+	}
+	var x [][]float32
+	var groups []int
+	for g := 0; g < n; g++ {
+		own := make([]float32, d)
+		for j := range own {
+			own[j] = float32(quirk * r.NormFloat64())
+		}
+		for w := 0; w < 40; w++ {
+			v := make([]float32, d)
+			for j := range v {
+				v[j] = -40 + pointOf(g)*shift[j] + own[j] + float32(0.3*r.NormFloat64())
+			}
+			x, groups = append(x, v), append(groups, g)
+		}
+	}
+	return x, groups
+}
+
+// Two set-points shared by many recordings: held-out recordings land on a
+// centre they have never been part of, so several centres win.
+func TestEnrollFindsSharedOperatingPoints(t *testing.T) {
+	x, groups := groupedDraw(20, func(g int) float32 { return float32(g % 2) }, 0, 31)
+	k, err := SelectCentroids(x, groups, DefaultModelOptions(), 5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if k < 2 {
+		t.Errorf("chose %d centre(s) for two shared operating points", k)
+	}
+}
+
+// Every recording with its own quirk and no shared operating points:
+// centres would learn the quirks, which do not carry over to a recording
+// never seen, so one mean wins.
+func TestEnrollKeepsOneMeanForRecordingQuirks(t *testing.T) {
+	x, groups := groupedDraw(10, func(int) float32 { return 0 }, 2, 32)
+	k, err := SelectCentroids(x, groups, DefaultModelOptions(), 5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if k != 1 {
+		t.Errorf("chose %d centres for recordings that share nothing but the mean", k)
+	}
+}

@@ -29,6 +29,6 @@ func ExampleFit() {
 	probe[3] += 1.5 // one band 1.5 dB up, against the healthy pattern
 	fmt.Printf("fault   %.2f\n", s.Distance(probe))
 	// Output:
-	// healthy 0.44
-	// fault   0.66
+	// healthy 0.46
+	// fault   0.67
 }

@@ -4,15 +4,17 @@ package baseline
 //
 //	offset  size  content
 //	0       8     magic "AUSCBL\r\n" (the CR LF catches text-mode mangling)
-//	8       4     format version, uint32 (currently 1)
+//	8       4     format version, uint32 (currently 2; 1 is still read)
 //	12      4     header length H, uint32
 //	16      H     header: JSON of Baseline (configuration, calibration, enrolment)
 //	16+H    4     dimension D, uint32
 //	        4     kept components K, uint32
+//	        4     operating-point centres C, uint32 (version 2 only; 0 = one, the mean)
 //	        4*D   mean, float32
 //	        4*D   scale, float32
 //	        4*K   eigenvalues, float32
 //	        4*K*D components, row by row, float32
+//	        4*C*D centres, row by row, float32 (version 2 only)
 //	        4     eigenvalue floor, float32
 //	        4     anchor, float32
 //	end-4   4     CRC-32C (Castagnoli) of every byte before it
@@ -36,9 +38,11 @@ import (
 
 const (
 	magic         = "AUSCBL\r\n"
-	formatVersion = 1
+	formatVersion = 2
+	oldestVersion = 1 // version 1: no operating-point centres
 	maxHeader     = 1 << 20
 	maxDim        = 1 << 14
+	maxCentres    = 64
 )
 
 // Errors of reading baseline files.
@@ -63,6 +67,7 @@ func (b *Baseline) Marshal() ([]byte, error) {
 	}
 	b.Enrolled.Dim = m.Dim()
 	b.Enrolled.Components = len(m.Lambda)
+	b.Enrolled.OperatingPoints = max(len(m.Centres), 1)
 	b.ID = ""
 	body := payload(m)
 	b.ID = contentID(b, body)
@@ -92,10 +97,11 @@ func contentID(b *Baseline, body []byte) string {
 }
 
 func payload(m *Model) []byte {
-	d, k := len(m.Mean), len(m.Lambda)
-	out := make([]byte, 0, 8+4*(2*d+k+k*d+2))
+	d, k, c := len(m.Mean), len(m.Lambda), len(m.Centres)
+	out := make([]byte, 0, payloadSize(formatVersion, d, k, c))
 	out = binary.LittleEndian.AppendUint32(out, uint32(d))
 	out = binary.LittleEndian.AppendUint32(out, uint32(k))
+	out = binary.LittleEndian.AppendUint32(out, uint32(c))
 	put := func(v []float32) {
 		for _, f := range v {
 			out = binary.LittleEndian.AppendUint32(out, math.Float32bits(f))
@@ -104,11 +110,22 @@ func payload(m *Model) []byte {
 	put(m.Mean)
 	put(m.Scale)
 	put(m.Lambda)
-	for _, c := range m.Comps {
-		put(c)
+	for _, v := range m.Comps {
+		put(v)
+	}
+	for _, v := range m.Centres {
+		put(v)
 	}
 	put([]float32{m.Floor, m.Anchor})
 	return out
+}
+
+// payloadSize is the model's size in bytes for a format version.
+func payloadSize(version, d, k, c int) int {
+	if version == 1 {
+		return 8 + 4*(2*d+k+k*d+2)
+	}
+	return 12 + 4*(2*d+k+k*d+c*d+2)
 }
 
 // Unmarshal decodes a baseline file's bytes; name is used in errors.
@@ -119,7 +136,8 @@ func Unmarshal(data []byte, name string) (*Baseline, error) {
 	if len(data) < 16 || string(data[:8]) != magic {
 		return fail(ErrNotBaseline, "missing the %q magic", "AUSCBL")
 	}
-	if v := binary.LittleEndian.Uint32(data[8:]); v != formatVersion {
+	version := binary.LittleEndian.Uint32(data[8:])
+	if v := version; v < oldestVersion || v > formatVersion {
 		return fail(ErrVersion, "version %d, this build reads version %d; enrol the machine again with this build "+
 			"(auscult enroll --live --config FILE --out NEW), or run the build that wrote it", v, formatVersion)
 	}
@@ -141,11 +159,19 @@ func Unmarshal(data []byte, name string) (*Baseline, error) {
 		return fail(ErrCorrupt, "header: %v", err)
 	}
 	p := body[16+h:]
-	d, k := int(binary.LittleEndian.Uint32(p)), int(binary.LittleEndian.Uint32(p[4:]))
-	if d < 1 || d > maxDim || k > d || len(p) != 8+4*(2*d+k+k*d+2) {
-		return fail(ErrCorrupt, "model of %d dimensions and %d components does not match its %d bytes", d, k, len(p))
+	if len(p) < 12 {
+		return fail(ErrCorrupt, "model ends after %d bytes", len(p))
 	}
+	d, k, c := int(binary.LittleEndian.Uint32(p)), int(binary.LittleEndian.Uint32(p[4:])), 0
 	p = p[8:]
+	if version >= 2 {
+		c = int(binary.LittleEndian.Uint32(p))
+		p = p[4:]
+	}
+	if d < 1 || d > maxDim || k > d || c == 1 || c > maxCentres || len(body)-16-int(h) != payloadSize(int(version), d, k, c) {
+		return fail(ErrCorrupt, "model of %d dimensions, %d components and %d centres does not match its %d bytes",
+			d, k, c, len(body)-16-int(h))
+	}
 	get := func(n int) []float32 {
 		v := make([]float32, n)
 		for i := range v {
@@ -157,6 +183,9 @@ func Unmarshal(data []byte, name string) (*Baseline, error) {
 	m := &Model{Mean: get(d), Scale: get(d), Lambda: get(k)}
 	for i := 0; i < k; i++ {
 		m.Comps = append(m.Comps, get(d))
+	}
+	for i := 0; i < c; i++ {
+		m.Centres = append(m.Centres, get(d))
 	}
 	tail := get(2)
 	m.Floor, m.Anchor = tail[0], tail[1]

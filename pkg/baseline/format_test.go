@@ -1,7 +1,9 @@
 package baseline
 
 import (
+	"encoding/binary"
 	"errors"
+	"hash/crc32"
 	"os"
 	"path/filepath"
 	"strings"
@@ -123,5 +125,40 @@ func TestCompatible(t *testing.T) {
 	fc.FMax = 11025
 	if err := b.Compatible(fc); !errors.Is(err, ErrMismatch) || !strings.Contains(err.Error(), "22050 Hz") {
 		t.Errorf("rate mismatch: %v", err)
+	}
+}
+
+// A version-1 file (written before operating-point centres existed: no
+// centre count in the model) still loads and scores as it did.
+func TestLoadReadsVersion1(t *testing.T) {
+	b := testBaseline(t)
+	one := b.Options
+	one.Centroids = 1
+	m, err := Fit(correlated(120, 30, 11), one)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b.Model, b.Options = m, one
+	v2, err := b.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := int(binary.LittleEndian.Uint32(v2[12:]))
+	model := 16 + h // D, K, then C (0) in version 2
+	if c := binary.LittleEndian.Uint32(v2[model+8:]); c != 0 {
+		t.Fatalf("centre count %d for a one-mean model", c)
+	}
+	v1 := append(append([]byte(nil), v2[:model+8]...), v2[model+12:len(v2)-4]...)
+	binary.LittleEndian.PutUint32(v1[8:], 1)
+	v1 = binary.LittleEndian.AppendUint32(v1, crc32.Checksum(v1, castagnoli))
+	got, err := Unmarshal(v1, "old.baseline")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s1, s2 := m.NewScorer(), got.Model.NewScorer()
+	for _, v := range correlated(5, 30, 12) {
+		if s1.Distance(v) != s2.Distance(v) {
+			t.Fatal("a version-1 file scores differently")
+		}
 	}
 }

@@ -11,12 +11,16 @@ import (
 // Model is the fitted whitening transform and anchor. It is read-only once
 // fitted; use a Scorer to compute distances.
 type Model struct {
-	Mean   []float32   // healthy mean per dimension
-	Scale  []float32   // healthy standard deviation per dimension (floored)
-	Lambda []float32   // eigenvalues of the kept components, descending
-	Comps  [][]float32 // kept unit eigenvectors, K x D
-	Floor  float32     // eigenvalue floor for everything outside the kept components
-	Anchor float32     // the constant first coordinate of every embedding
+	Mean []float32 // healthy mean per dimension
+	// Centres are the means of the healthy operating points (k-means
+	// clusters), when enrolment found more than one; nil means one centre,
+	// Mean. A window is scored against its nearest centre.
+	Centres [][]float32
+	Scale   []float32   // healthy within-cluster standard deviation per dimension (floored)
+	Lambda  []float32   // eigenvalues of the kept components, descending
+	Comps   [][]float32 // kept unit eigenvectors, K x D
+	Floor   float32     // eigenvalue floor for everything outside the kept components
+	Anchor  float32     // the constant first coordinate of every embedding
 }
 
 // ModelOptions tunes the fit.
@@ -38,10 +42,21 @@ type ModelOptions struct {
 	// MinScale is the smallest per-dimension standard deviation used for
 	// standardising, in the features' units (dB; default 0.1).
 	MinScale float64 `json:"min_scale"`
+	// Centroids is the most operating points enrolment may find (k-means
+	// clusters of the healthy windows, each with its own mean; the
+	// whitening is shared). 0 or 1 keeps one mean. A cluster needs at least
+	// two independent windows (2 x Redundancy) or it is merged away.
+	Centroids int `json:"centroids,omitempty"`
 }
 
+// DefaultCentroids is the default ModelOptions.Centroids (docs/evaluation.md
+// has the measurements behind it).
+const DefaultCentroids = 5
+
 // DefaultModelOptions returns the options enrolment uses by default.
-func DefaultModelOptions() ModelOptions { return ModelOptions{Floor: 1, Redundancy: 1, MinScale: 0.1} }
+func DefaultModelOptions() ModelOptions {
+	return ModelOptions{Floor: 1, Redundancy: 1, MinScale: 0.1, Centroids: DefaultCentroids}
+}
 
 // Fit learns a model from healthy vectors (N x D, N >= 2).
 func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
@@ -65,23 +80,30 @@ func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
 	}
 	for j := range mean {
 		mean[j] /= float64(n)
+		m.Mean[j] = float32(mean[j])
 	}
-	vars := make([]float64, d)
-	for _, v := range x {
-		for j, f := range v {
-			dv := float64(f) - mean[j]
-			vars[j] += dv * dv
+	centres, labels := [][]float64{mean}, make([]int, n)
+	if opt.Centroids > 1 {
+		scale := spread(x, centres, labels, opt.MinScale)
+		minSize := int(math.Ceil(2 * max(opt.Redundancy, 1)))
+		centres, labels = operatingPoints(x, mean, scale, opt.Centroids, minSize)
+	}
+	if len(centres) > 1 {
+		for _, c := range centres {
+			m.Centres = append(m.Centres, toFloat32(c))
 		}
 	}
-	for j := range vars {
-		m.Mean[j] = float32(mean[j])
-		m.Scale[j] = float32(max(math.Sqrt(vars[j]/float64(n-1)), opt.MinScale))
+	scale := spread(x, centres, labels, opt.MinScale)
+	for j := range scale {
+		m.Scale[j] = float32(scale[j])
 	}
+	// Everything below works on the windows' offsets from their own centre.
 	z := mat.NewDense(n, d, nil)
 	for i, v := range x {
 		row := z.RawRowView(i)
+		c := centres[labels[i]]
 		for j, f := range v {
-			row[j] = (float64(f) - mean[j]) / float64(m.Scale[j])
+			row[j] = (float64(f) - c[j]) / float64(m.Scale[j])
 		}
 	}
 	var cov mat.SymDense
@@ -113,7 +135,8 @@ func Fit(x [][]float32, opt ModelOptions) (*Model, error) {
 			m.Comps = append(m.Comps, c)
 		}
 	}
-	// Anchor: the root-mean-square whitened norm of the training windows.
+	// Anchor: the root-mean-square whitened norm of the training windows
+	// (each from its nearest centre).
 	s := m.NewScorer()
 	var sq float64
 	for _, v := range x {
@@ -136,12 +159,38 @@ type Scorer struct {
 // NewScorer returns a Scorer for m.
 func (m *Model) NewScorer() *Scorer { return &Scorer{m: m, z: make([]float32, len(m.Mean))} }
 
-// norm2 is the squared whitened norm |w|^2 of x.
+// norm2 is the squared whitened norm |w|^2 of x from its nearest centre.
 func (s *Scorer) norm2(x []float32) float64 {
+	if len(s.m.Centres) == 0 {
+		return s.norm2From(x, s.m.Mean)
+	}
+	best := math.Inf(1)
+	for _, c := range s.m.Centres {
+		best = min(best, s.norm2From(x, c))
+	}
+	return best
+}
+
+// nearest returns the centre nearest to x in the whitened metric.
+func (s *Scorer) nearest(x []float32) []float32 {
+	if len(s.m.Centres) == 0 {
+		return s.m.Mean
+	}
+	best, bestD := s.m.Centres[0], math.Inf(1)
+	for _, c := range s.m.Centres {
+		if d := s.norm2From(x, c); d < bestD {
+			best, bestD = c, d
+		}
+	}
+	return best
+}
+
+// norm2From is the squared whitened norm of x - centre.
+func (s *Scorer) norm2From(x, centre []float32) float64 {
 	m := s.m
 	var zz float64
 	for j, v := range x {
-		z := (v - m.Mean[j]) / m.Scale[j]
+		z := (v - centre[j]) / m.Scale[j]
 		s.z[j] = z
 		zz += float64(z) * float64(z)
 	}
@@ -169,15 +218,73 @@ func (s *Scorer) Distance(x []float32) float64 {
 // floored Mahalanobis distance squared.
 func (s *Scorer) Norm2(x []float32) float64 { return s.norm2(x) }
 
+// LogDensity is the log-likelihood of x under the model read as a Gaussian
+// mixture: one component per centre, equal weights, the shared floored
+// covariance (in the input units), leaving out the constant -D/2 log 2pi.
+// Enrolment compares it across numbers of centres on held-out windows.
+func (s *Scorer) LogDensity(x []float32) float64 {
+	m := s.m
+	logDet := float64(len(m.Mean)-len(m.Lambda)) * math.Log(float64(m.Floor))
+	for _, l := range m.Lambda {
+		logDet += math.Log(float64(l))
+	}
+	for _, v := range m.Scale {
+		logDet += 2 * math.Log(float64(v))
+	}
+	centres := m.Centres
+	if len(centres) == 0 {
+		return -0.5*s.norm2From(x, m.Mean) - 0.5*logDet
+	}
+	// log sum_c exp(-d_c/2) / C, kept finite by factoring out the largest term.
+	top := math.Inf(-1)
+	for _, c := range centres {
+		top = max(top, -0.5*s.norm2From(x, c))
+	}
+	var sum float64
+	for _, c := range centres {
+		sum += math.Exp(-0.5*s.norm2From(x, c) - top)
+	}
+	return top + math.Log(sum/float64(len(centres))) - 0.5*logDet
+}
+
 // CosineDistance is the cosine distance between an embedding with anchor a
 // and squared whitened norm d2, and the mean embedding (a, 0, ..., 0).
 func CosineDistance(a, d2 float64) float64 { return 1 - a/math.Sqrt(a*a+d2) }
 
-// Deviations writes the standardised deviation (x - mean)/scale of every
-// dimension into dst (len D) and returns it.
+// Deviations writes the standardised deviation (x - centre)/scale of every
+// dimension into dst (len D) and returns it, from the healthy centre
+// nearest to x.
 func (s *Scorer) Deviations(x []float32, dst []float32) []float32 {
+	c := s.nearest(x)
 	for j, v := range x {
-		dst[j] = (v - s.m.Mean[j]) / s.m.Scale[j]
+		dst[j] = (v - c[j]) / s.m.Scale[j]
 	}
 	return dst
+}
+
+// spread returns each dimension's standard deviation around the windows'
+// own centres (n - number of centres degrees of freedom), at least minScale.
+func spread(x [][]float32, centres [][]float64, labels []int, minScale float64) []float64 {
+	d := len(centres[0])
+	vars := make([]float64, d)
+	for i, v := range x {
+		c := centres[labels[i]]
+		for j, f := range v {
+			e := float64(f) - c[j]
+			vars[j] += e * e
+		}
+	}
+	dof := float64(max(len(x)-len(centres), 1))
+	for j := range vars {
+		vars[j] = max(math.Sqrt(vars[j]/dof), minScale)
+	}
+	return vars
+}
+
+func toFloat32(v []float64) []float32 {
+	out := make([]float32, len(v))
+	for i, f := range v {
+		out[i] = float32(f)
+	}
+	return out
 }

@@ -101,18 +101,43 @@ func TestDistanceIsFlooredMahalanobis(t *testing.T) {
 
 // The distance is the cosine distance between the explicit embedding
 // (anchor, whitened coordinates, scaled residual) and the mean embedding
-// (anchor, 0, ...): 1 - e.m / (|e| |m|).
+// (anchor, 0, ...): 1 - e.m / (|e| |m|), taken from the nearest
+// operating-point centre when there are several.
 func TestDistanceIsCosineToMeanEmbedding(t *testing.T) {
 	x := correlated(200, 16, 3)
-	m, err := Fit(x, DefaultModelOptions())
-	if err != nil {
-		t.Fatal(err)
+	for _, centroids := range []int{1, DefaultCentroids} {
+		opt := DefaultModelOptions()
+		opt.Centroids = centroids
+		m, err := Fit(x, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		centres := m.Centres
+		if centroids == 1 {
+			centres = [][]float32{m.Mean}
+		} else if len(centres) < 2 {
+			t.Fatalf("%d centres from %d allowed", len(centres), centroids)
+		}
+		s := m.NewScorer()
+		for _, v := range correlated(10, 16, 4) {
+			want := 1.0
+			for _, c := range centres {
+				want = min(want, explicitCosine(m, v, c))
+			}
+			if got := s.Distance(v); math.Abs(got-want) > 1e-4 {
+				t.Errorf("%d centres: distance %.6f, explicit cosine %.6f", len(centres), got, want)
+			}
+		}
 	}
-	s := m.NewScorer()
-	for _, v := range correlated(10, 16, 4) {
+}
+
+// explicitCosine builds the embedding of v from centre c and returns its
+// cosine distance to the mean embedding (anchor, 0, ..., 0).
+func explicitCosine(m *Model, v, centre []float32) float64 {
+	{
 		z := make([]float64, len(v))
 		for j := range z {
-			z[j] = float64((v[j] - m.Mean[j]) / m.Scale[j])
+			z[j] = float64((v[j] - centre[j]) / m.Scale[j])
 		}
 		e := []float64{float64(m.Anchor)}
 		res := append([]float64(nil), z...)
@@ -133,10 +158,86 @@ func TestDistanceIsCosineToMeanEmbedding(t *testing.T) {
 		for _, x := range e {
 			ee += x * x
 		}
-		want := 1 - e[0]*float64(m.Anchor)/(math.Sqrt(ee)*float64(m.Anchor))
-		if got := s.Distance(v); math.Abs(got-want) > 1e-4 {
-			t.Errorf("distance %.6f, explicit cosine %.6f", got, want)
+		return 1 - e[0]*float64(m.Anchor)/(math.Sqrt(ee)*float64(m.Anchor))
+	}
+}
+
+// A machine with two healthy operating points (two set-points of a drive,
+// say): one mean sits between them, where no healthy window ever is, so a
+// window there would score as the healthiest of all. With operating-point
+// centres it scores as unusual, and windows at either point stay healthy.
+func TestCentresKeepTheGapBetweenOperatingPoints(t *testing.T) {
+	const d = 12
+	r := rand.New(rand.NewPCG(21, 22))
+	shift := make([]float32, d)
+	for j := range shift {
+		shift[j] = float32(3 * r.NormFloat64())
+	}
+	draw := func(n int, at float32) [][]float32 {
+		out := make([][]float32, n)
+		for i := range out {
+			v := make([]float32, d)
+			for j := range v {
+				v[j] = -40 + at*shift[j] + float32(0.3*r.NormFloat64())
+			}
+			out[i] = v
 		}
+		return out
+	}
+	x := append(draw(150, 0), draw(150, 1)...)
+	mid := draw(50, 0.5)
+	fresh := append(draw(50, 0), draw(50, 1)...)
+	mean := func(s *Scorer, xs [][]float32) float64 {
+		var sum float64
+		for _, v := range xs {
+			sum += s.Distance(v)
+		}
+		return sum / float64(len(xs))
+	}
+	one := DefaultModelOptions()
+	one.Centroids = 1
+	m1, _ := Fit(x, one)
+	mk, _ := Fit(x, DefaultModelOptions())
+	s1, sk := m1.NewScorer(), mk.NewScorer()
+	h1, g1 := mean(s1, fresh), mean(s1, mid)
+	hk, gk := mean(sk, fresh), mean(sk, mid)
+	t.Logf("one mean: healthy %.3f, between %.3f; %d centres: healthy %.3f, between %.3f", h1, g1, len(mk.Centres), hk, gk)
+	if !(g1 < h1) {
+		t.Errorf("with one mean the gap should look healthier than the operating points: %.3f vs %.3f", g1, h1)
+	}
+	if !(gk > hk+0.3) {
+		t.Errorf("with centres the gap should stand out: between %.3f, healthy %.3f", gk, hk)
+	}
+}
+
+// Enrolment must be reproducible: the same windows give the same model.
+func TestCentresAreDeterministic(t *testing.T) {
+	x := correlated(300, 20, 9)
+	a, _ := Fit(x, DefaultModelOptions())
+	b, _ := Fit(x, DefaultModelOptions())
+	if len(a.Centres) != len(b.Centres) || len(a.Centres) < 2 {
+		t.Fatalf("centres %d and %d", len(a.Centres), len(b.Centres))
+	}
+	for i := range a.Centres {
+		for j := range a.Centres[i] {
+			if a.Centres[i][j] != b.Centres[i][j] {
+				t.Fatal("two fits of the same windows differ")
+			}
+		}
+	}
+}
+
+// A cluster with fewer than two independent windows is merged away.
+func TestCentresNeedEnoughWindows(t *testing.T) {
+	x := correlated(12, 8, 10)
+	opt := DefaultModelOptions()
+	opt.Redundancy = 5 // 12 windows are 2.4 independent ones: room for one centre only
+	m, err := Fit(x, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Centres) > 1 {
+		t.Errorf("%d centres from 12 windows of redundancy 5", len(m.Centres))
 	}
 }
 

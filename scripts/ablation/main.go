@@ -163,7 +163,19 @@ func run(ds *dataset, v variant) (result, error) {
 	var m *baseline.Model
 	var err error
 	if !v.level {
-		if m, err = baseline.Fit(x, v.mo); err != nil {
+		mo := v.mo
+		if mo.Centroids > 1 { // as enrolment does: the count chosen on held-out recordings
+			var groups []int
+			for g, it := range ds.train {
+				for range it.vecs {
+					groups = append(groups, g)
+				}
+			}
+			if mo.Centroids, err = baseline.SelectCentroids(x, groups, mo, 5); err != nil {
+				return result{}, err
+			}
+		}
+		if m, err = baseline.Fit(x, mo); err != nil {
 			return result{}, err
 		}
 	}
@@ -273,6 +285,7 @@ func main() {
 	diag := def
 	diag.NoWhiten = true
 	withFloor := func(f float64) baseline.ModelOptions { o := def; o.Floor = f; return o }
+	withCentres := func(k int) baseline.ModelOptions { o := def; o.Centroids = k; return o }
 	variants := []variant{
 		{name: "RMS level detector", level: true},
 		{name: "mel mean, standardised only", parts: parts("mel_mean"), mo: diag},
@@ -286,6 +299,10 @@ func main() {
 		{name: "all four parts, whitened", parts: parts("mel_low", "fine", "mel_mean", "mel_std"), mo: def},
 		{name: "low + fine, floor x0.25", parts: parts("mel_low", "fine"), mo: withFloor(0.25)},
 		{name: "low + fine, floor x4", parts: parts("mel_low", "fine"), mo: withFloor(4)},
+		{name: "low + fine, one mean", parts: parts("mel_low", "fine"), mo: withCentres(1)},
+		{name: "low + fine, up to 3 centres", parts: parts("mel_low", "fine"), mo: withCentres(3)},
+		{name: "low + fine, up to 8 centres", parts: parts("mel_low", "fine"), mo: withCentres(8)},
+		{name: "mel low quantile, whitened, one mean", parts: parts("mel_low"), mo: withCentres(1)},
 	}
 	var sets []*dataset
 	for _, dir := range flag.Args() {
