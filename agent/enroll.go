@@ -26,6 +26,7 @@ type enrollOptions struct {
 	warnProb float64
 	k, n     int
 	floor    float64
+	centres  int
 	parts    string
 	trim     int
 	window   int
@@ -82,6 +83,7 @@ func (o *enrollOptions) enrolOptions(fc features.Config, ec embed.Config) enrol.
 	eo := enrol.DefaultOptions()
 	eo.Features, eo.Embed, eo.Asset = fc, ec, o.asset
 	eo.Model.Floor = o.floor
+	eo.Model.Centroids = o.centres
 	eo.Calibration.FalseAlarmProb, eo.Calibration.WarnProb = o.faProb, o.warnProb
 	eo.Calibration.K, eo.Calibration.N = o.k, o.n
 	return eo
@@ -98,6 +100,7 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	fs.Float64Var(&o.warnProb, "warn-prob", 0.02, "per-window probability the lower warning threshold is set for")
 	debounce := fs.String("debounce", "3/5", "raise after K of N windows over threshold, as K/N")
 	fs.Float64Var(&o.floor, "floor", baseline.DefaultModelOptions().Floor, "scale of the eigenvalue floor (1 = the sampling-noise edge)")
+	fs.IntVar(&o.centres, "centres", baseline.DefaultCentroids, "most healthy operating points to try (k-means centres, the count chosen on held-out recordings); 1 keeps one mean")
 	fs.StringVar(&o.parts, "parts", "low,fine", "embedding parts: low (quiet floor per mel band), fine (low-frequency lines), mean, std")
 	fs.IntVar(&o.trim, "trim", embed.DefaultConfig().Trim, "sub-window values trimmed at each end per dimension")
 	fs.IntVar(&o.window, "window", embed.DefaultConfig().Window, "sub-windows (1.024 s each) per analysis window; longer needs more enrolment and delays alarms")
@@ -149,6 +152,8 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 		return usagef("--warn-prob %g: want a probability above --false-alarm-prob (%g) and below 0.5", o.warnProb, o.faProb)
 	case !(o.floor > 0):
 		return usagef("--floor %g: want a positive scale, 1 is the default", o.floor)
+	case o.centres < 1 || o.centres > 16:
+		return usagef("--centres %d: want 1 to 16 (1 keeps one mean, %d is the default)", o.centres, baseline.DefaultCentroids)
 	case o.window < 2:
 		return usagef("--window %d: want 2 or more sub-windows, 5 is the default", o.window)
 	case o.trim < 0:

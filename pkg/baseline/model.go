@@ -51,7 +51,7 @@ type ModelOptions struct {
 
 // DefaultCentroids is the default ModelOptions.Centroids (docs/evaluation.md
 // has the measurements behind it).
-const DefaultCentroids = 5
+const DefaultCentroids = 8
 
 // DefaultModelOptions returns the options enrolment uses by default.
 func DefaultModelOptions() ModelOptions {

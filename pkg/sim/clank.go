@@ -76,6 +76,6 @@ func (s *scene) mode(x []float64, start int, fHz, tau, a float64) {
 func (s *scene) click(r *rand.Rand, x []float64, start int, a float64) {
 	l := int(uniform(r, 0.001, 0.002) * float64(s.rate))
 	for k := 0; k < l && start+k < len(x); k++ {
-		x[start+k] += a * 0.5 * r.NormFloat64() * math.Exp(-4*float64(k)/float64(l))
+		x[start+k] += a * 0.5 * gauss(r) * math.Exp(-4*float64(k)/float64(l))
 	}
 }

@@ -76,7 +76,7 @@ func (s *scene) mixUnit(parts [][]float64, shares []float64) []float64 {
 // housing resonance.
 func (s *scene) bearingOuter(r *rand.Rand) []float64 {
 	ratio := s.m.Bearing.BPFO(1)
-	x := s.impactTrain(r, ratio, 0.01, 0, func(int) float64 { return math.Max(0, 1+0.15*r.NormFloat64()) })
+	x := s.impactTrain(r, ratio, 0.01, 0, func(int) float64 { return math.Max(0, 1+0.15*gauss(r)) })
 	return s.ring(x, s.m.ResonanceHz, uniform(r, 15, 30), uniform(r, 1.3, 1.8))
 }
 
@@ -88,7 +88,7 @@ func (s *scene) bearingInner(r *rand.Rand) []float64 {
 	p := 2 * math.Pi * r.Float64()
 	x := s.impactTrain(r, ratio, 0.01, 0, func(i int) float64 {
 		load := 0.5 + 0.5*math.Cos(2*math.Pi*s.shaft.cyclesAt(i)+p)
-		return (0.25 + 0.75*load) * math.Max(0, 1+0.15*r.NormFloat64())
+		return (0.25 + 0.75*load) * math.Max(0, 1+0.15*gauss(r))
 	})
 	return s.ring(x, s.m.ResonanceHz*uniform(r, 0.9, 1.1), uniform(r, 15, 30), uniform(r, 1.3, 1.8))
 }
@@ -155,7 +155,7 @@ func (s *scene) looseness(r *rand.Rand) []float64 {
 	}
 	harm := make([]float64, s.total)
 	s.shaft.add(harm, groupPartials(1, ps, rel))
-	imp := s.impactTrain(r, 1, 0.04, 0.25, func(int) float64 { return math.Exp(0.5 * r.NormFloat64()) })
+	imp := s.impactTrain(r, 1, 0.04, 0.25, func(int) float64 { return math.Exp(0.5 * gauss(r)) })
 	rattle := s.ring(imp, uniform(r, 600, 2500), uniform(r, 3, 6), uniform(r, 2, 2.6))
 	return s.mixUnit([][]float64{harm, rattle}, []float64{0.5, 0.5})
 }

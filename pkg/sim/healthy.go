@@ -70,7 +70,7 @@ func (s *scene) healthy() healthyParts {
 		[]partial{{mult: v, phase: vanePhase}, {mult: 2 * v, phase: ph()}, {mult: 3 * v, phase: ph()}},
 		[]float64{1, 0.3, 0.1})
 	aV := vp[0].amp
-	am := m.VaneAM * (1 + 0.2*r.NormFloat64())
+	am := m.VaneAM * (1 + 0.2*gauss(r))
 	amPhase := ph()
 	// (1 + am cos(phi + p)) sin(V phi + q) has sidebands of amplitude am/2 at
 	// (V+1) phi + q + p and (V-1) phi + q - p.

@@ -29,7 +29,7 @@ func (s *scene) impactTrain(r *rand.Rand, ratio, jitterFrac, skip float64, amp f
 		}
 		perSample := ratio * s.shaft.hzAt(i) / float64(s.rate) // cycles per sample
 		period := 1 / perSample                                // samples
-		pos := float64(i) - (c-k)/perSample + jitterFrac*period*r.NormFloat64()
+		pos := float64(i) - (c-k)/perSample + jitterFrac*period*gauss(r)
 		j := int(math.Floor(pos))
 		if j < 0 || j+1 >= s.total {
 			continue
@@ -70,9 +70,9 @@ func (s *scene) bursts(r *rand.Rand, rateHz func(i int) float64) []float64 {
 			continue
 		}
 		l := int(uniform(r, 0.0005, 0.003) * fs)
-		a := math.Exp(0.7 * r.NormFloat64())
+		a := math.Exp(0.7 * gauss(r))
 		for j := 0; j < l && i+j < len(x); j++ {
-			x[i+j] += a * r.NormFloat64() * math.Exp(-3*float64(j)/float64(l))
+			x[i+j] += a * gauss(r) * math.Exp(-3*float64(j)/float64(l))
 		}
 	}
 	return x

@@ -9,7 +9,7 @@ import (
 func white(r *rand.Rand, n int) []float64 {
 	x := make([]float64, n)
 	for i := range x {
-		x[i] = r.NormFloat64()
+		x[i] = gauss(r)
 	}
 	return x
 }
@@ -96,7 +96,7 @@ func slowWobble(r *rand.Rand, rate, n int, cornerHz float64) []float64 {
 	var y float64
 	a := 0.6
 	for i := range k {
-		y = a*y + (1-a)*r.NormFloat64()
+		y = a*y + (1-a)*gauss(r)
 		k[i] = y
 	}
 	x := make([]float64, n)

@@ -133,6 +133,6 @@ func (p parts) sample(i int) float64 {
 // quantise adds recorder self-noise of about 0.5 LSB rms, rounds, and
 // hard-clips to the int16 range as a recorder does.
 func quantise(v float64, r *rand.Rand) int16 {
-	v += 0.5 * r.NormFloat64()
+	v += 0.5 * gauss(r)
 	return int16(math.Max(-32768, math.Min(32767, math.Round(v))))
 }

@@ -24,7 +24,7 @@ func roomIR(r *rand.Rand, rate int, rt60, drrDB float64) []float64 {
 	for i := onset; i < n; i++ {
 		t := float64(i) / float64(rate)
 		ramp := math.Min(1, float64(i-onset)/(0.005*float64(rate)))
-		y = lp*y + (1-lp)*r.NormFloat64()
+		y = lp*y + (1-lp)*gauss(r)
 		h[i] = y * ramp * math.Exp(-decay*t)
 	}
 	for range 6 {

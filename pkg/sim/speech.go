@@ -60,14 +60,14 @@ func (s *scene) speech() []float64 {
 				pitch := f0 * (1 + 0.08*math.Sin(2*math.Pi*0.7*t) - 0.05*t)
 				var src float64
 				if fric && k < fricLen {
-					src = 0.3 * r.NormFloat64() * env
+					src = 0.3 * gauss(r) * env
 				} else {
 					nextPulse -= 1
 					if nextPulse <= 0 {
 						src = env
-						nextPulse += fs / pitch * (1 + 0.01*r.NormFloat64())
+						nextPulse += fs / pitch * (1 + 0.01*gauss(r))
 					}
-					src += 0.02 * r.NormFloat64() * env // aspiration
+					src += 0.02 * gauss(r) * env // aspiration
 				}
 				// two one-pole low-passes give the glottal roll-off; a first
 				// difference stands in for radiation at the lips

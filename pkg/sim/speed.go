@@ -19,7 +19,7 @@ func driveHzPerBlock(r *rand.Rand, blocks int, setpointHz, w0 float64) []float64
 	w := w0
 	const stepStd = 1.2e-4 // per 10 ms block: about 0.4 % rms after 10 s
 	for i := range hz {
-		w += stepStd * r.NormFloat64()
+		w += stepStd * gauss(r)
 		if w > wanderLimit {
 			w = 2*wanderLimit - w
 		}

@@ -245,6 +245,7 @@ func main() {
 	levelRMS := flag.Bool("levelrms", false, "subtract the RMS level instead of the mean band level")
 	lowQ := flag.Float64("lowq", embed.DefaultConfig().LowQuantile, "quantile of the low part")
 	levelNorm := flag.Bool("levelnorm", true, "subtract each sub-window's level")
+	centres := flag.Int("centres", baseline.DefaultCentroids, "most operating-point centres the default variants may use (chosen on held-out recordings)")
 	dump := flag.String("dump", "", "write the window vectors of the first data set to this folder (float32 .bin files and an index) and stop")
 	flag.Parse()
 	fc := features.DefaultConfig()
@@ -282,6 +283,7 @@ func main() {
 	}
 	def := baseline.DefaultModelOptions()
 	def.Redundancy = float64(ec.Window) // enrolment windows advance by one sub-window
+	def.Centroids = *centres
 	diag := def
 	diag.NoWhiten = true
 	withFloor := func(f float64) baseline.ModelOptions { o := def; o.Floor = f; return o }
