@@ -303,7 +303,7 @@ func main() {
 		{name: "low + fine, floor x4", parts: parts("mel_low", "fine"), mo: withFloor(4)},
 		{name: "low + fine, one mean", parts: parts("mel_low", "fine"), mo: withCentres(1)},
 		{name: "low + fine, up to 3 centres", parts: parts("mel_low", "fine"), mo: withCentres(3)},
-		{name: "low + fine, up to 8 centres", parts: parts("mel_low", "fine"), mo: withCentres(8)},
+		{name: "low + fine, up to 5 centres", parts: parts("mel_low", "fine"), mo: withCentres(5)},
 		{name: "mel low quantile, whitened, one mean", parts: parts("mel_low"), mo: withCentres(1)},
 	}
 	var sets []*dataset
