@@ -9,7 +9,9 @@ import (
 	"math"
 	"net"
 	"os"
+	"os/signal"
 	"path/filepath"
+	"syscall"
 	"time"
 
 	"github.com/auscult/auscult/pkg/baseline"
@@ -144,12 +146,21 @@ func checkSound(rate int, s config.Source, b *baseline.Baseline) (string, error)
 	if err != nil {
 		return "", err
 	}
+	// A microphone that cannot be opened, or is busy, delivers nothing: the
+	// deadline (and Ctrl-C) interrupts the waiting read instead of hanging.
+	wait := checkSeconds*time.Second + 5*time.Second
+	deadline := time.Now().Add(wait)
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	if src.interrupt != nil {
+		defer context.AfterFunc(ctx, src.interrupt)()
+		defer time.AfterFunc(wait, src.interrupt).Stop()
+	}
 	buf := make([]int16, rate/10)
 	var n int
 	var sum float64
 	var peak int
-	deadline := time.Now().Add(checkSeconds*time.Second + 5*time.Second)
-	for n < checkSeconds*rate && time.Now().Before(deadline) {
+	for n < checkSeconds*rate && time.Now().Before(deadline) && ctx.Err() == nil {
 		k, err := src.Read(buf)
 		for _, v := range buf[:k] {
 			sum += float64(v) * float64(v)
@@ -164,8 +175,14 @@ func checkSound(rate int, s config.Source, b *baseline.Baseline) (string, error)
 			return "", err
 		}
 	}
+	if ctx.Err() != nil {
+		return "", fmt.Errorf("%s: interrupted after %.1f s", src.desc, float64(n)/float64(rate))
+	}
 	if n == 0 {
-		return "", fmt.Errorf("%s delivered no sound", src.desc)
+		if why := deviceTrouble(src); why != "" {
+			return "", fmt.Errorf("%s delivered no sound in %v: %s", src.desc, wait, why)
+		}
+		return "", fmt.Errorf("%s delivered no sound in %v", src.desc, wait)
 	}
 	sensor.Close(int64(n), nil)
 	r := sensor.Last()
@@ -182,6 +199,31 @@ func checkSound(rate int, s config.Source, b *baseline.Baseline) (string, error)
 		}
 	}
 	return line, nil
+}
+
+// deviceTrouble stops a device source and returns what its last failed
+// open or device error said, or "" (other sources, or no trouble reported).
+func deviceTrouble(src *liveSource) string {
+	if src.capture == nil {
+		return ""
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), time.Second)
+	defer cancel()
+	src.capture.Close(ctx)
+	var why string
+	for {
+		select {
+		case d, ok := <-src.capture.Diagnostics():
+			if !ok {
+				return why
+			}
+			if d.Err != nil {
+				why = d.Err.Error()
+			}
+		default:
+			return why
+		}
+	}
 }
 
 func abs16(v int16) int {

@@ -172,15 +172,15 @@ func runEnroll(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	old, err := previousBaseline(*out)
+	if err != nil {
+		return err
+	}
 	b, err := enroll(files, o, stderr)
 	if err != nil {
 		return err
 	}
-	if err := b.Save(*out); err != nil {
-		return err
-	}
-	printEnrolment(stdout, b, *out)
-	return nil
+	return saveKeeping(b, old, *out, stdout)
 }
 
 // enroll builds a baseline from healthy files.

@@ -36,11 +36,9 @@ func enrollLive(s config.Source, d time.Duration, out string, o enrollOptions, s
 	if err != nil {
 		return err
 	}
-	var old *baseline.Baseline
-	if _, err := os.Stat(out); err == nil {
-		if old, err = baseline.Load(out); err != nil {
-			return fmt.Errorf("%s exists but is not a baseline this version reads (%w); move it away or choose another --out", out, err)
-		}
+	old, err := previousBaseline(out)
+	if err != nil {
+		return err
 	}
 	stopped, err := stopFilter(old, fc, ec)
 	if err != nil {
@@ -54,6 +52,9 @@ func enrollLive(s config.Source, d time.Duration, out string, o enrollOptions, s
 	defer src.closeFn(context.Background())
 	ctx, stop := signal.NotifyContext(context.Background(), syscall.SIGINT, syscall.SIGTERM)
 	defer stop()
+	if src.interrupt != nil { // Ctrl-C ends a read waiting for a microphone that cannot be opened
+		defer context.AfterFunc(ctx, src.interrupt)()
+	}
 	lim := &limited{ctx: ctx, Source: src, left: int64(d.Seconds() * float64(fc.Rate))}
 	fmt.Fprintf(stderr, "enrolling from %s for %v (Ctrl-C ends early and enrols what was heard)\n", src.desc, d)
 	next := float64(progressEvery)
@@ -74,32 +75,59 @@ func enrollLive(s config.Source, d time.Duration, out string, o enrollOptions, s
 	}
 	b, err := e.Finish()
 	if err != nil {
+		if e.Seconds() == 0 {
+			if why := deviceTrouble(src); why != "" {
+				return fmt.Errorf("%w\n%s delivered no sound: %s", err, src.desc, why)
+			}
+		}
 		return err
 	}
-	if old != nil {
-		keep := fmt.Sprintf("%s.%s", out, old.ID)
-		if err := os.Rename(out, keep); err != nil {
-			return fmt.Errorf("keeping the previous baseline: %w", err)
-		}
+	return saveKeeping(b, old, out, stdout)
+}
+
+// previousBaseline loads the baseline already at out, if there is one. A
+// file there that is not a readable baseline is an error: it is never
+// overwritten.
+func previousBaseline(out string) (*baseline.Baseline, error) {
+	if _, err := os.Stat(out); err != nil {
+		return nil, nil
+	}
+	old, err := baseline.Load(out)
+	if err != nil {
+		return nil, fmt.Errorf("%s exists but is not a baseline this version reads (%w); move it away or choose another --out", out, err)
+	}
+	return old, nil
+}
+
+// saveKeeping writes b to out and prints its summary. A previous baseline
+// old at out is kept beside it as out.<id>, and how far the new healthy
+// sound lies from it is shown: a new baseline never silently replaces the
+// old one.
+func saveKeeping(b, old *baseline.Baseline, out string, stdout io.Writer) error {
+	if old == nil {
 		if err := b.Save(out); err != nil {
-			os.Rename(keep, out)
 			return err
 		}
 		printEnrolment(stdout, b, out)
-		dist := baselineDistance(old, b)
-		fmt.Fprintf(stdout, "  previous    %s (enrolled %s) kept as %s\n", old.ID, old.Created.Format("2006-01-02"), keep)
-		if math.IsNaN(dist) {
-			fmt.Fprintf(stdout, "  moved       not comparable: the two were enrolled with different settings\n")
-		} else {
-			fmt.Fprintf(stdout, "  moved       the new healthy sound scores %.4f on the previous baseline (its alarm level %.4f)\n",
-				dist, old.Calib.Threshold)
-		}
 		return nil
 	}
+	keep := fmt.Sprintf("%s.%s", out, old.ID)
+	if err := os.Rename(out, keep); err != nil {
+		return fmt.Errorf("keeping the previous baseline: %w", err)
+	}
 	if err := b.Save(out); err != nil {
+		os.Rename(keep, out)
 		return err
 	}
 	printEnrolment(stdout, b, out)
+	dist := baselineDistance(old, b)
+	fmt.Fprintf(stdout, "  previous    %s (enrolled %s) kept as %s\n", old.ID, old.Created.Format("2006-01-02"), keep)
+	if math.IsNaN(dist) {
+		fmt.Fprintf(stdout, "  moved       not comparable: the two were enrolled with different settings\n")
+	} else {
+		fmt.Fprintf(stdout, "  moved       the new healthy sound scores %.4f on the previous baseline (its alarm level %.4f)\n",
+			dist, old.Calib.Threshold)
+	}
 	return nil
 }
 

@@ -45,3 +45,34 @@ func TestEnrollLive(t *testing.T) {
 	wantFail(t, cli(t, "enroll", "--live", "--duration", "5m"), 2, "--live needs --config")
 	wantFail(t, cli(t, "enroll", "--live", "--config", cfg, "somefile.wav"), 2, "leave out the files")
 }
+
+// Enrolling from files over an existing baseline keeps the old one beside
+// it, as live enrolment does, and a file at --out that is not a baseline is
+// never overwritten.
+func TestEnrollFromFilesKeepsThePrevious(t *testing.T) {
+	s := simulateSkid(t)
+	dir := t.TempDir()
+	out := filepath.Join(dir, "P-492B.ausb")
+	train := filepath.Join(s.dir, "train")
+	mustRun(t, "enroll", "--out", out, train)
+	first, _ := os.ReadFile(out)
+	r := mustRun(t, "enroll", "--centres", "1", "--out", out, train)
+	for _, want := range []string{"previous ", "kept as " + out + ".", "moved "} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("second enrolment output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+	kept, _ := filepath.Glob(out + ".*")
+	if len(kept) != 1 {
+		t.Fatalf("previous baseline not kept: %v", kept)
+	}
+	if b, _ := os.ReadFile(kept[0]); string(b) != string(first) {
+		t.Error("the kept copy is not the first baseline")
+	}
+	notes := filepath.Join(dir, "notes.txt")
+	os.WriteFile(notes, []byte("commissioning notes, P-492B\n"), 0o644)
+	wantFail(t, cli(t, "enroll", "--out", notes, train), 1, "is not a baseline this version reads", "move it away")
+	if b, _ := os.ReadFile(notes); string(b) != "commissioning notes, P-492B\n" {
+		t.Error("a file that is not a baseline was overwritten")
+	}
+}

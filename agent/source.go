@@ -87,8 +87,11 @@ func openSource(s config.Source, rate int, stdin io.Reader) (*liveSource, error)
 			c.Close(context.Background())
 			return nil, err
 		}
+		// interrupt stops the capture without waiting for it: a read waiting
+		// for a device that cannot be opened then ends at once, so a signal
+		// or a deadline never waits on the reopen back-off.
 		return &liveSource{Source: src, desc: "device " + quoteOrDefault(s.Device), realtime: true, capture: c,
-			closeFn: c.Close, clock: wall}, nil
+			closeFn: c.Close, clock: wall, interrupt: func() { go c.Close(context.Background()) }}, nil
 	case config.SourceStdin:
 		in, interrupt := interruptible(stdin)
 		r, err := audio.NewRawSource(in, s.RateHz, s.Channels, s.Channel)

@@ -138,8 +138,8 @@ func Unmarshal(data []byte, name string) (*Baseline, error) {
 	}
 	version := binary.LittleEndian.Uint32(data[8:])
 	if v := version; v < oldestVersion || v > formatVersion {
-		return fail(ErrVersion, "version %d, this build reads version %d; enrol the machine again with this build "+
-			"(auscult enroll --live --config FILE --out NEW), or run the build that wrote it", v, formatVersion)
+		return fail(ErrVersion, "version %d, this build reads versions %d to %d; enrol the machine again with this build "+
+			"(auscult enroll --live --config FILE --out NEW), or run the build that wrote it", v, oldestVersion, formatVersion)
 	}
 	if len(data) < 16+4 {
 		return fail(ErrCorrupt, "file ends after %d bytes", len(data))
