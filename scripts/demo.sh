@@ -67,6 +67,7 @@ source:
 log:
   path: $work/auscult.db
   summary_min: 15
+  flush_s: 2           # the demo runs an hour in seconds; on the skid the default 10 s spares the SD card
 web:
   listen: 127.0.0.1:$webport
   token_file: $work/web-token
@@ -81,18 +82,24 @@ fi
 echo "configuration: $work/agent.yaml"
 
 step "2. Enrolling the healthy pump live, through stdin (an hour of sound, accelerated)"
+# The sound of step 3 is made meanwhile on the other core (the simulator is
+# the slow part of this demo).
+listen_script=healthy@60m,bearing_outer/mild@6m,bearing_outer/moderate@6m,bearing_outer/severe@6m,healthy@3m
+("$bin" simulate --seed 1 --snr 6 --take 1 --script "$listen_script" >"$work/listen.s16le" 2>/dev/null && touch "$work/made") &
+pids+=($!)
 "$bin" simulate --seed 1 --snr 6 --take 0 --script healthy@60m 2>/dev/null |
 	"$bin" enroll --live --config "$work/agent.yaml" --source stdin --duration 60m --out "$work/P-492B.baseline" 2>&1 |
 	grep -v '^ *$' | tail -n 12
 
 step "3. Listening: an hour of healthy running, then a bearing fault that grows"
 echo "script: healthy 60 min, outer-race bearing mild 6 min, moderate 6 min, severe 6 min, healthy 3 min"
-echo "(stamped as if it began 81 minutes ago; fed as fast as the simulator makes it)"
+echo "(stamped as if it began 81 minutes ago; fed as fast as the agent reads it)"
 mkfifo "$work/sound"
 "$bin" run --config "$work/agent.yaml" --source stdin --clock samples --clock-start 81m <"$work/sound" 2>"$work/agent.log" &
 pids+=($!)
 (
-	"$bin" simulate --seed 1 --snr 6 --take 1 --script healthy@60m,bearing_outer/mild@6m,bearing_outer/moderate@6m,bearing_outer/severe@6m,healthy@3m
+	while [ ! -e "$work/made" ]; do sleep 0.2; done
+	cat "$work/listen.s16le"
 	touch "$work/fed"
 	exec sleep 3600 # keeps stdin open: the agent keeps serving its pages until the demo ends
 ) >"$work/sound" 2>/dev/null &
@@ -105,6 +112,15 @@ grep -o 'msg="[^"]*" asset=P-492B event=[^ ]*' "$work/agent.log" | sed 's/ asset
 	grep -v 'machine.running' | sed -n "1,12p" | sed 's/^/  /'
 
 step "4. What the SCADA bridge received over MQTT"
+if [ -n "$mqtt" ]; then # summaries close on the agent's periodic flush: wait for them, and for the outbox to drain (at most 30 s)
+	last=-1
+	for _ in $(seq 1 30); do
+		now=$(wc -l <"$work/scada.txt" 2>/dev/null || echo 0)
+		[ "$now" = "$last" ] && grep -q '/summary ' "$work/scada.txt" && break
+		last=$now
+		sleep 1
+	done
+fi
 if [ -n "$mqtt" ] && [ -s "$work/scada.txt" ]; then
 	awk '{ topic = $1; $1 = ""; kind = topic; sub(/.*\//, "", kind)
 		if (kind == "alarm" || kind == "status") {
