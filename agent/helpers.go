@@ -37,12 +37,18 @@ func startHelpers(ctx context.Context, done <-chan struct{}, mon *monitor.Monito
 		wg.Go(func() { watchdog(done, timeout/2, max(timeout, minStallLimit), mon, &deviceTrouble, log) })
 	}
 	wg.Go(func() {
+		// The running source may come from --source; a reload compares the
+		// file's source with what the file said at the start.
+		fileSource := cfg.Source
+		if c, err := config.Load(cfgPath); err == nil {
+			fileSource = c.Source
+		}
 		for {
 			select {
 			case <-done:
 				return
 			case <-hup:
-				cfg = reload(cfg, cfgPath, mon, log)
+				cfg = reload(cfg, fileSource, cfgPath, mon, log)
 			}
 		}
 	})
@@ -95,14 +101,16 @@ func watchdog(done <-chan struct{}, every, stallLimit time.Duration, mon *monito
 // reload re-reads the configuration on SIGHUP and returns the one now in
 // force. A bad file is reported and changes nothing. The alarm's clear
 // fraction, off-delay, latching and shelve limit apply at once, keeping the
-// alarm state; everything else that shapes the running loop (source, log,
-// baseline, debounce, evidence) waits for a restart, which the log line says.
-func reload(old config.Config, path string, mon *monitor.Monitor, log *slog.Logger) config.Config {
+// alarm state; everything else (site, asset, source, log, baseline,
+// debounce, evidence, mqtt, web) waits for a restart, which the log line
+// names.
+func reload(old config.Config, fileSource config.Source, path string, mon *monitor.Monitor, log *slog.Logger) config.Config {
 	cfg, err := config.Load(path)
 	if err != nil {
 		log.Error("config reload refused; keeping the running configuration", "err", err)
 		return old
 	}
+	sameSource := reflect.DeepEqual(cfg.Source, fileSource)
 	cfg.Source = old.Source // the running source may come from --source
 	applied := old
 	a, b := old.Alarm, cfg.Alarm
@@ -121,7 +129,8 @@ func reload(old config.Config, path string, mon *monitor.Monitor, log *slog.Logg
 		same bool
 	}{{"site", cfg.Site == old.Site}, {"asset", cfg.Asset == old.Asset}, {"baseline", cfg.Baseline == old.Baseline},
 		{"alarm.debounce", applied.Alarm == cfg.Alarm}, {"evidence", cfg.Evidence == old.Evidence}, {"log", cfg.Log == old.Log},
-		{"mqtt", reflect.DeepEqual(cfg.MQTT, old.MQTT)}} {
+		{"mqtt", reflect.DeepEqual(cfg.MQTT, old.MQTT)}, {"source", sameSource},
+		{"web", reflect.DeepEqual(cfg.Web, old.Web)}} {
 		if !c.same {
 			later = append(later, c.name)
 		}

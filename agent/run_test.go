@@ -340,6 +340,10 @@ func TestRunReloadsOnSIGHUP(t *testing.T) {
 	}
 	hup(strings.Replace(string(text), "asset: P-492B", "asset: P-492C", 1))
 	p.waitFor(t, "take effect at the next restart", 5*time.Second)
+	// The source is not applied by a reload either, and the journal must
+	// say so rather than "no changes".
+	hup(strings.Replace(string(text), "speed: 1", "speed: 2", 1))
+	p.waitFor(t, "changed=source", 5*time.Second)
 	p.cmd.Process.Signal(syscall.SIGTERM)
 	if err := <-p.done; err != nil {
 		t.Fatalf("exit: %v\n%s", err, p.log())

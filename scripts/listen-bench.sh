@@ -18,7 +18,9 @@
 # CPU is utime+stime from /proc/PID/stat, sampled when the agent logs
 # "listening" and again just before SIGTERM, over the wall time between
 # (startup excluded). Peak RSS is VmHWM from /proc/PID/status just before
-# SIGTERM (startup included). Latency is the agent's own lag_mean_ms and
+# SIGTERM (startup included); RssAnon and RssFile split the resident set at
+# that moment into private memory and file pages (the executable and the
+# bbolt log, which is mmapped: clean file pages the kernel can drop). Latency is the agent's own lag_mean_ms and
 # lag_max_ms from its final "stopped" line: how long after the window's last
 # sample was due (on the paced schedule) the decision was made; it includes
 # waiting for the rest of the 4096-sample read block that completes the
@@ -122,6 +124,8 @@ for c in "${clients[@]}"; do kill "$c" 2>/dev/null || true; done
 kill -0 "$pid" 2>/dev/null || { cat "$log" >&2; echo "listen-bench.sh: the agent stopped before $secs s were up" >&2; exit 1; }
 c1=$(cpu_ticks "$pid"); t1=$(now)
 hwm_kb=$(awk '/^VmHWM:/ { print $2 }' "/proc/$pid/status")
+anon_kb=$(awk '/^RssAnon:/ { print $2 }' "/proc/$pid/status")
+file_kb=$(awk '/^RssFile:/ { print $2 }' "/proc/$pid/status")
 kill -TERM "$pid"
 trap - EXIT
 rc=0; wait "$pid" || rc=$?
@@ -133,7 +137,7 @@ events=$(grep -c ' event=' "$log" || true)
 
 echo "listen-bench: figures over $(awk -v a="$t0" -v b="$t1" 'BEGIN { printf "%.1f", b - a }') s of listening ($(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg))"
 awk -v c0="$c0" -v c1="$c1" -v t0="$t0" -v t1="$t1" -v hz="$(getconf CLK_TCK)" -v hwm="$hwm_kb" \
-  -v win="$(field windows)" -v lm="$(field lag_mean_ms)" -v lx="$(field lag_max_ms)" -v ev="$events" -v webload="$load" 'BEGIN {
+  -v anon="$anon_kb" -v file="$file_kb" -v win="$(field windows)" -v lm="$(field lag_mean_ms)" -v lx="$(field lag_max_ms)" -v ev="$events" -v webload="$load" 'BEGIN {
   cpu = 100 * (c1 - c0) / hz / (t1 - t0)
   if (webload > 0) {
     printf "CPU share of one core  %6.2f %%      (listening and serving the pages)\n", cpu
@@ -142,6 +146,7 @@ awk -v c0="$c0" -v c1="$c1" -v t0="$t0" -v t1="$t1" -v hz="$(getconf CLK_TCK)" -
     printf "CPU share of one core  %6.2f %%      goal < 2 %%    %s\n", cpu, (cpu < 2 ? "met" : "NOT met")
     printf "peak RSS (VmHWM)       %6.1f MiB    goal < 30 MB  %s\n", hwm / 1024, (hwm / 1024 < 30 ? "met" : "NOT met")
   }
+  printf "RSS at the end          %5.1f MiB    of which %.1f MiB private (heap, stacks, runtime) and %.1f MiB file pages (the binary, the mmapped log)\n", (anon + file) / 1024, anon / 1024, file / 1024
   printf "windows decided        %6d        (%d events logged)\n", win, ev
   printf "latency mean           %6d ms\n", lm
   printf "latency max            %6d ms\n", lx

@@ -1,6 +1,7 @@
 package baseline
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"sort"
@@ -299,5 +300,27 @@ func TestScorerDoesNotAllocate(t *testing.T) {
 	s := m.NewScorer()
 	if a := testing.AllocsPerRun(100, func() { s.Distance(x[1]) }); a != 0 {
 		t.Errorf("Distance allocates %.0f times", a)
+	}
+}
+
+// BenchmarkDistance scores one window of the default size (195 dimensions)
+// against a model with about 40 kept components, with one mean and with
+// 8 operating-point centres.
+func BenchmarkDistance(b *testing.B) {
+	x := correlated(400, 195, 8)
+	for _, k := range []int{1, 8} {
+		opt := DefaultModelOptions()
+		opt.Centroids = k
+		m, err := Fit(x, opt)
+		if err != nil {
+			b.Fatal(err)
+		}
+		s := m.NewScorer()
+		b.Run(fmt.Sprintf("centres=%d", max(len(m.Centres), 1)), func(b *testing.B) {
+			b.ReportAllocs()
+			for i := 0; b.Loop(); i++ {
+				s.Distance(x[i%len(x)])
+			}
+		})
 	}
 }
