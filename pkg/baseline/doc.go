@@ -25,6 +25,18 @@
 // window far from it. The anchor is set so a typical healthy window scores
 // about 0.29.
 //
+// # Operating points
+//
+// A machine with several healthy operating points (drive set-points, a
+// background that comes and goes) does not sound like one cloud around one
+// mean. Enrolment may cluster the healthy windows by k-means into up to
+// ModelOptions.Centroids centres; the whitening is then fitted to each
+// window's offset from its own centre and shared, and a window is scored
+// against its nearest centre (its own mean embedding). How many centres, 1
+// to the maximum, is chosen on the calibration folds by the mean held-out
+// log-likelihood of the model read as a Gaussian mixture, so centres that
+// only fit one recording's quirks are not kept.
+//
 // # Calibration
 //
 // Windows are grouped by recording (or blocks of a long recording) into
