@@ -5,7 +5,6 @@ package main
 import (
 	"os"
 	"strings"
-	"syscall"
 	"testing"
 	"time"
 )
@@ -41,17 +40,7 @@ func TestRunStopsOnSIGTERMWhileTheMicrophoneIsMissing(t *testing.T) {
 	cfg, logPath := writeConfig(t, s.baseline, missingMic)
 	p := start(t, nil, "run", "--config", cfg)
 	p.waitFor(t, "open failed (attempt 2)", 20*time.Second)
-	if err := p.cmd.Process.Signal(syscall.SIGTERM); err != nil {
-		t.Fatal(err)
-	}
-	select {
-	case err := <-p.done:
-		if err != nil {
-			t.Fatalf("exit after SIGTERM: %v\n%s", err, p.log())
-		}
-	case <-time.After(15 * time.Second): // hang detector: the unit's stop timeout is 20 s
-		t.Fatalf("still running 15 s after SIGTERM:\n%s", p.log())
-	}
+	p.terminate(t, 15*time.Second) // the unit's stop timeout is 20 s
 	if !strings.Contains(p.log(), "reason=signal") {
 		t.Errorf("no clean stop logged:\n%s", p.log())
 	}

@@ -197,6 +197,23 @@ func (p *process) waitFor(t *testing.T, s string, limit time.Duration) {
 	t.Fatalf("no %q on stderr within %v:\n%s", s, limit, p.log())
 }
 
+// terminate sends SIGTERM and fails the test unless the agent exits with
+// status 0 within limit (a hang detector, not a speed goal).
+func (p *process) terminate(t *testing.T, limit time.Duration) {
+	t.Helper()
+	if err := p.cmd.Process.Signal(syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	select {
+	case err := <-p.done:
+		if err != nil {
+			t.Fatalf("exit after SIGTERM: %v\n%s", err, p.log())
+		}
+	case <-time.After(limit):
+		t.Fatalf("still running %v after SIGTERM:\n%s", limit, p.log())
+	}
+}
+
 func (p *process) log() string {
 	p.mu.Lock()
 	defer p.mu.Unlock()
@@ -213,17 +230,7 @@ func TestRunStopsOnSIGTERM(t *testing.T) {
 	p.waitFor(t, "listening", 10*time.Second)
 	time.Sleep(8 * time.Second) // a few windows in real time
 	sent := time.Now()
-	if err := p.cmd.Process.Signal(syscall.SIGTERM); err != nil {
-		t.Fatal(err)
-	}
-	select {
-	case err := <-p.done:
-		if err != nil {
-			t.Fatalf("exit after SIGTERM: %v\n%s", err, p.log())
-		}
-	case <-time.After(10 * time.Second):
-		t.Fatalf("still running 10 s after SIGTERM:\n%s", p.log())
-	}
+	p.terminate(t, 10*time.Second)
 	t.Logf("stopped %v after SIGTERM", time.Since(sent).Round(time.Millisecond))
 	if !strings.Contains(p.log(), "reason=signal") {
 		t.Errorf("no clean stop logged:\n%s", p.log())
