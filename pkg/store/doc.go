@@ -70,8 +70,10 @@
 // Retention runs inside a flush, deleting at most 2000 records per pass;
 // if that was not enough the next flush goes on. By age it runs every
 // Options.PruneInterval (1 h): records older than Options.MaxAge for their
-// kind go (defaults: events 5 years, summaries 3 years, trend 400 days,
-// clips 90 days). By size it runs at every flush that finds the live bytes
+// kind go (package defaults: events 5 years, summaries 3 years, trend 400
+// days, clips 90 days; the agent passes its configuration's log.event_days,
+// 1000 by default, and log.trend_days, 400, for trend and summaries
+// alike). By size it runs at every flush that finds the live bytes
 // over Options.MaxBytes (256 MiB): it deletes, oldest first, trend points
 // and clips (whichever of the two is older), then summaries, and events
 // last, until an estimate says the live bytes are down to 90% of the cap.
