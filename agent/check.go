@@ -188,8 +188,11 @@ func checkSound(rate int, s config.Source, b *baseline.Baseline) (string, error)
 	r := sensor.Last()
 	// RMS re a full-scale sine (AES17): a full-scale sine has RMS 32767/sqrt(2).
 	level := 10*math.Log10(sum/float64(n)+1e-12) - 10*math.Log10(32767.0*32767.0/2)
-	line := fmt.Sprintf("%s: %.1f s, level %.1f dBFS, peak %.1f dBFS, clipped %.3f %%", src.desc,
-		float64(n)/float64(rate), level, 20*math.Log10(float64(max(peak, 1))/32768), 100*r.ClipFraction)
+	levels := fmt.Sprintf("level %.1f dBFS, peak %.1f dBFS", level, 20*math.Log10(float64(peak)/32768))
+	if peak == 0 {
+		levels = "no level (every sample 0: digital silence)"
+	}
+	line := fmt.Sprintf("%s: %.1f s, %s, clipped %.3f %%", src.desc, float64(n)/float64(rate), levels, 100*r.ClipFraction)
 	if b != nil {
 		line += fmt.Sprintf(" (healthy at enrolment: %.1f dBFS)", b.Level.MeanDBFS)
 	}
