@@ -100,17 +100,7 @@ work="$(mktemp -d)"
 trap 'rm -rf "$work"' EXIT
 # ALSA's file plugin as a capture device (see shared PLATFORM-NOTES): with ALSA_CONFIG_PATH pointing here, a build
 # with live capture lists "testmic" whatever sound hardware the machine has (here: none).
-cat >"$work/asound.conf" <<'EOF'
-pcm.null { type null }
-pcm.testmic {
-    type file
-    slave.pcm "null"
-    file "/dev/null"
-    infile { @func getenv vars [ AUSCULT_TEST_INFILE ] default "/dev/zero" }
-    format "raw"
-}
-pcm.!default "testmic"
-EOF
+cp pkg/capture/capturetest/testmic.asoundrc "$work/asound.conf"
 
 ldflags="-s -w -X main.version=$version"
 rows=()

@@ -197,10 +197,12 @@ check "a  scripts/install.sh refuses to mix with the installed package" \
   sh_in "$r" 'not /root/auscult/scripts/install.sh --binary /tmp/auscult-1.0.1 2>/tmp/mix.txt; grep "package is installed" /tmp/mix.txt; [ ! -e /usr/local/bin/auscult ]'
 
 # b: local changes, then the newer package.
-check "b  edit the config as M. Okafor would, add a baseline and a log (random bytes)" sh_in "$r" 'sed -i "s/^  max_mb: 256 /  max_mb: 128 /" /etc/auscult/agent.yaml; echo "# edited on site by M. Okafor" >>/etc/auscult/agent.yaml
+# local_edits changes what a site changes (the config, a baseline, the log: random bytes) and records their hashes.
+local_edits='sed -i "s/^  max_mb: 256 /  max_mb: 128 /" /etc/auscult/agent.yaml; echo "# edited on site by M. Okafor" >>/etc/auscult/agent.yaml
   head -c 38315 /dev/urandom >/var/lib/auscult/P-492B.ausb; head -c 65536 /dev/urandom >/var/lib/auscult/auscult.db
   chown auscult:auscult /var/lib/auscult/P-492B.ausb /var/lib/auscult/auscult.db
   sha256sum /etc/auscult/agent.yaml /var/lib/auscult/P-492B.ausb /var/lib/auscult/auscult.db >/root/kept.sha256'
+check "b  edit the config as M. Okafor would, add a baseline and a log (random bytes)" sh_in "$r" "$local_edits"
 kept_ok='sha256sum -c /root/kept.sha256; grep -q "^  max_mb: 128 " /etc/auscult/agent.yaml; [ "$(stat -c %U /var/lib/auscult/P-492B.ausb)" = auscult ]'
 t=$(now)
 check "b  apt-get install ./auscult_1.0.1_amd64.deb over 1.0.0" \
@@ -261,10 +263,7 @@ check "e  /var/lib/auscult auscult:auscult 0750, /etc/auscult/agent.yaml root:au
   sh_in "$r" "$folders_ok; cmp /etc/auscult/agent.yaml /root/auscult/configs/agent.example.yaml"
 check "e  unit in /etc/systemd/system with ExecStart=/usr/local/bin/auscult; auscult version 1.0.0" \
   sh_in "$r" "$unit_ok; [ \"\$(/usr/local/bin/auscult version)\" = 'auscult 1.0.0' ]"
-check "e  edit the config, add a baseline and a log (random bytes)" sh_in "$r" 'sed -i "s/^  max_mb: 256 /  max_mb: 128 /" /etc/auscult/agent.yaml; echo "# edited on site by M. Okafor" >>/etc/auscult/agent.yaml
-  head -c 38315 /dev/urandom >/var/lib/auscult/P-492B.ausb; head -c 65536 /dev/urandom >/var/lib/auscult/auscult.db
-  chown auscult:auscult /var/lib/auscult/P-492B.ausb /var/lib/auscult/auscult.db
-  sha256sum /etc/auscult/agent.yaml /var/lib/auscult/P-492B.ausb /var/lib/auscult/auscult.db >/root/kept.sha256'
+check "e  edit the config, add a baseline and a log (random bytes)" sh_in "$r" "$local_edits"
 t=$(now)
 check "f  apt-get install systemd procps in the root" sh_in "$r" 'apt-get install -y --no-install-recommends systemd procps'
 echo "   (took $(since "$t"))"

@@ -152,12 +152,22 @@ func (m *Model) Dim() int { return len(m.Mean) }
 // Scorer computes distances without allocating. Not safe for concurrent
 // use; make one per goroutine.
 type Scorer struct {
-	m *Model
-	z []float32
+	m      *Model
+	z      []float32
+	logDet float64 // log-determinant of the floored covariance, for LogDensity
 }
 
 // NewScorer returns a Scorer for m.
-func (m *Model) NewScorer() *Scorer { return &Scorer{m: m, z: make([]float32, len(m.Mean))} }
+func (m *Model) NewScorer() *Scorer {
+	logDet := float64(len(m.Mean)-len(m.Lambda)) * math.Log(float64(m.Floor))
+	for _, l := range m.Lambda {
+		logDet += math.Log(float64(l))
+	}
+	for _, v := range m.Scale {
+		logDet += 2 * math.Log(float64(v))
+	}
+	return &Scorer{m: m, z: make([]float32, len(m.Mean)), logDet: logDet}
+}
 
 // norm2 is the squared whitened norm |w|^2 of x from its nearest centre.
 func (s *Scorer) norm2(x []float32) float64 {
@@ -223,14 +233,7 @@ func (s *Scorer) Norm2(x []float32) float64 { return s.norm2(x) }
 // covariance (in the input units), leaving out the constant -D/2 log 2pi.
 // Enrolment compares it across numbers of centres on held-out windows.
 func (s *Scorer) LogDensity(x []float32) float64 {
-	m := s.m
-	logDet := float64(len(m.Mean)-len(m.Lambda)) * math.Log(float64(m.Floor))
-	for _, l := range m.Lambda {
-		logDet += math.Log(float64(l))
-	}
-	for _, v := range m.Scale {
-		logDet += 2 * math.Log(float64(v))
-	}
+	m, logDet := s.m, s.logDet
 	centres := m.Centres
 	if len(centres) == 0 {
 		return -0.5*s.norm2From(x, m.Mean) - 0.5*logDet

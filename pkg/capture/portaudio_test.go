@@ -28,7 +28,7 @@ import (
 // device (no ALSA host API) they skip, unless CI=true, where they fail.
 
 // alsaConf is the ALSA configuration of PLATFORM-NOTES.md.
-const alsaConf = capturetest.ALSAConfig
+var alsaConf = capturetest.ALSAConfig
 
 const liveRate = 8000
 

@@ -5,6 +5,7 @@
 package capturetest
 
 import (
+	_ "embed"
 	"os"
 	"path/filepath"
 )
@@ -19,17 +20,11 @@ const InfileEnv = "AUSCULT_TEST_INFILE"
 const DeviceName = "testmic"
 
 // ALSAConfig is a complete ALSA configuration holding only the test device
-// (it replaces the system's when ALSA_CONFIG_PATH points at it).
-const ALSAConfig = `pcm.null { type null }
-pcm.testmic {
-    type file
-    slave.pcm "null"
-    file "/dev/null"
-    infile { @func getenv vars [ AUSCULT_TEST_INFILE ] default "/dev/zero" }
-    format "raw"
-}
-pcm.!default "testmic"
-`
+// (it replaces the system's when ALSA_CONFIG_PATH points at it). The file
+// is shared with scripts/build.sh, which lists the device with each build.
+//
+//go:embed testmic.asoundrc
+var ALSAConfig string
 
 // Env writes ALSAConfig into dir and returns the environment entries that
 // make a process (or, set with os.Setenv before PortAudio initialises, this
